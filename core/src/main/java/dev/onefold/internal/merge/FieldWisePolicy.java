@@ -1,0 +1,356 @@
+package dev.onefold.internal.merge;
+
+import dev.onefold.DatasetSpec.FieldRule;
+import dev.onefold.OnefoldException;
+import dev.onefold.internal.bytes.ByteReader;
+import dev.onefold.internal.bytes.ByteWriter;
+import dev.onefold.internal.encoding.OrderedBytes;
+import dev.onefold.internal.encoding.RowCodec;
+import dev.onefold.internal.hash.XxHash64;
+import dev.onefold.record.FieldPath;
+import dev.onefold.record.FieldType;
+import dev.onefold.record.Row;
+import dev.onefold.record.RowSchema;
+import java.math.BigDecimal;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.Collections;
+import java.util.List;
+import java.util.Map;
+import java.util.TreeMap;
+
+/**
+ * Field-wise merge: every top-level field has a rule and its own version stamps, so the state is a product of
+ * per-field joins (a product of joins is a join):
+ * <ul>
+ *   <li>{@code latest}: max of (version, canonical value bytes); {@code latest-non-null} the same over non-null
+ *       values only; {@code first}: min of (version, value bytes).</li>
+ *   <li>{@code max} / {@code min}: max / min of the value's order bytes; nulls ignored.</li>
+ *   <li>{@code union}: lists as sets of elements (output in canonical byte order); maps key-wise, each entry
+ *       latest by (version, value bytes).</li>
+ *   <li>{@code sum}: one contribution per distinct version (equal versions keep the greater value bytes), summed
+ *       in version order, so replays never double-count. Integer sums wrap like Java arithmetic.</li>
+ * </ul>
+ * A record is deleted while the tombstone field's {@code latest} value is true; a newer record brings the key
+ * back with all merged fields (including contributions from before the delete: discarding them would break
+ * associativity for max, min and sum). Counting uses the record-level latest (version, content hash).
+ */
+public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
+
+    /** A value stamped with the version that contributed it. */
+    public record Stamp(long version, byte[] bytes, Object value) {}
+
+    /**
+     * Per-field state: {@code single} for latest, latest-non-null, first, max, min (null when nothing
+     * contributed); {@code entries} for union and sum, keyed by element bytes, map key or version.
+     */
+    public record FieldState(Stamp single, TreeMap<Object, Stamp> entries) {}
+
+    /** The merge state of one key. */
+    public record State(long latestVersion, long latestHash, FieldState[] fields) {}
+
+    private final RowSchema schema;
+    private final FieldRule[] rules;
+    private final FieldPath version;
+    private final int tombstoneIndex;
+
+    public FieldWisePolicy(RowSchema schema, FieldRule[] rules, FieldPath version, int tombstoneIndex) {
+        this.schema = schema;
+        this.rules = rules.clone();
+        this.version = version;
+        this.tombstoneIndex = tombstoneIndex;
+    }
+
+    private static final java.util.Comparator<Object> ENTRY_KEYS = (a, b) -> {
+        if (a instanceof Long x && b instanceof Long y) {
+            return Long.compare(x, y);
+        }
+        if (a instanceof String x && b instanceof String y) {
+            return x.compareTo(y);
+        }
+        return Arrays.compareUnsigned((byte[]) a, (byte[]) b);
+    };
+
+    @Override
+    public State lift(Row record) {
+        Object v = version.read(record);
+        if (v == null) {
+            throw OnefoldException.record("version field '" + version.path() + "' is null");
+        }
+        long ver = ((Number) v).longValue();
+        FieldState[] fs = new FieldState[rules.length];
+        for (int i = 0; i < rules.length; i++) {
+            fs[i] = liftField(i, ver, record.get(i));
+        }
+        return new State(ver, XxHash64.hash(RowCodec.encode(record)), fs);
+    }
+
+    private FieldState liftField(int i, long ver, Object value) {
+        FieldType type = schema.field(i).type();
+        switch (rules[i]) {
+            case LATEST:
+            case FIRST:
+                return new FieldState(new Stamp(ver, RowCodec.encodeValue(type, value), value), null);
+            case LATEST_NON_NULL:
+                return new FieldState(value == null ? null : new Stamp(ver, RowCodec.encodeValue(type, value), value), null);
+            case MAX:
+            case MIN:
+                return new FieldState(value == null ? null : new Stamp(ver, OrderedBytes.encode(type, value), value), null);
+            case UNION: {
+                TreeMap<Object, Stamp> entries = new TreeMap<>(ENTRY_KEYS);
+                if (value instanceof List<?> list) {
+                    for (Object e : list) {
+                        byte[] b = RowCodec.encodeValue(type.element(), e);
+                        entries.put(b, new Stamp(ver, b, e));
+                    }
+                } else if (value instanceof Map<?, ?> map) {
+                    for (Map.Entry<?, ?> e : map.entrySet()) {
+                        entries.put(e.getKey(), new Stamp(ver, RowCodec.encodeValue(type.element(), e.getValue()), e.getValue()));
+                    }
+                }
+                return new FieldState(null, entries);
+            }
+            case SUM: {
+                TreeMap<Object, Stamp> entries = new TreeMap<>(ENTRY_KEYS);
+                if (value != null) {
+                    entries.put(ver, new Stamp(ver, RowCodec.encodeValue(type, value), value));
+                }
+                return new FieldState(null, entries);
+            }
+            default:
+                throw new AssertionError(rules[i]);
+        }
+    }
+
+    @Override
+    public State merge(State a, State b, MergeCounts counts) {
+        if (a.latestVersion == b.latestVersion) {
+            if (a.latestHash == b.latestHash) {
+                counts.duplicates++;
+            } else {
+                counts.conflicts++;
+            }
+        } else {
+            counts.superseded++;
+        }
+        FieldState[] out = new FieldState[rules.length];
+        for (int i = 0; i < rules.length; i++) {
+            out[i] = mergeField(rules[i], a.fields[i], b.fields[i]);
+        }
+        long lv;
+        long lh;
+        if (a.latestVersion != b.latestVersion) {
+            boolean aWins = a.latestVersion > b.latestVersion;
+            lv = aWins ? a.latestVersion : b.latestVersion;
+            lh = aWins ? a.latestHash : b.latestHash;
+        } else {
+            lv = a.latestVersion;
+            lh = Long.compareUnsigned(a.latestHash, b.latestHash) >= 0 ? a.latestHash : b.latestHash;
+        }
+        return new State(lv, lh, out);
+    }
+
+    private static int byVersionThenBytes(Stamp x, Stamp y) {
+        int c = Long.compare(x.version, y.version);
+        return c != 0 ? c : Arrays.compareUnsigned(x.bytes, y.bytes);
+    }
+
+    private static int byBytesThenVersion(Stamp x, Stamp y) {
+        int c = Arrays.compareUnsigned(x.bytes, y.bytes);
+        return c != 0 ? c : Long.compare(x.version, y.version);
+    }
+
+    private static FieldState mergeField(FieldRule rule, FieldState x, FieldState y) {
+        switch (rule) {
+            case LATEST:
+            case LATEST_NON_NULL:
+                return new FieldState(pick(x.single, y.single, true, true), null);
+            case FIRST:
+                return new FieldState(pick(x.single, y.single, true, false), null);
+            case MAX:
+                return new FieldState(pick(x.single, y.single, false, true), null);
+            case MIN:
+                return new FieldState(pick(x.single, y.single, false, false), null);
+            case UNION:
+            case SUM: {
+                TreeMap<Object, Stamp> merged = new TreeMap<>(x.entries);
+                for (Map.Entry<Object, Stamp> e : y.entries.entrySet()) {
+                    merged.merge(e.getKey(), e.getValue(), (p, q) -> byVersionThenBytes(p, q) >= 0 ? p : q);
+                }
+                return new FieldState(null, merged);
+            }
+            default:
+                throw new AssertionError(rule);
+        }
+    }
+
+    private static Stamp pick(Stamp x, Stamp y, boolean versionFirst, boolean greatest) {
+        if (x == null) {
+            return y;
+        }
+        if (y == null) {
+            return x;
+        }
+        int c = versionFirst ? byVersionThenBytes(x, y) : byBytesThenVersion(x, y);
+        return (c >= 0) == greatest ? x : y;
+    }
+
+    @Override
+    public List<Row> visible(State state) {
+        return isDeleted(state) ? List.of() : List.of(anchor(state));
+    }
+
+    @Override
+    public boolean isDeleted(State state) {
+        if (tombstoneIndex < 0) {
+            return false;
+        }
+        Stamp s = state.fields[tombstoneIndex].single;
+        return s != null && Boolean.TRUE.equals(s.value);
+    }
+
+    @Override
+    public Row anchor(State state) {
+        Object[] values = new Object[rules.length];
+        for (int i = 0; i < rules.length; i++) {
+            FieldType type = schema.field(i).type();
+            FieldState f = state.fields[i];
+            switch (rules[i]) {
+                case UNION -> values[i] = unionValue(type, f.entries);
+                case SUM -> values[i] = sumValue(type, f.entries);
+                default -> values[i] = f.single == null ? null : f.single.value;
+            }
+        }
+        return Row.of(schema, values);
+    }
+
+    private static Object unionValue(FieldType type, TreeMap<Object, Stamp> entries) {
+        if (type.kind() == FieldType.Kind.MAP) {
+            if (entries.isEmpty() && type.isNullable()) {
+                return null;
+            }
+            TreeMap<String, Object> m = new TreeMap<>();
+            entries.forEach((k, s) -> m.put((String) k, s.value));
+            return Collections.unmodifiableSortedMap(m);
+        }
+        if (entries.isEmpty() && type.isNullable()) {
+            return null;
+        }
+        List<Object> l = new ArrayList<>(entries.size());
+        entries.values().forEach(s -> l.add(s.value));
+        return Collections.unmodifiableList(l);
+    }
+
+    private static Object sumValue(FieldType type, TreeMap<Object, Stamp> entries) {
+        if (entries.isEmpty()) {
+            return type.isNullable() ? null : zero(type);
+        }
+        Object acc = zero(type);
+        for (Stamp s : entries.values()) {
+            acc = add(type, acc, s.value);
+        }
+        return acc;
+    }
+
+    private static Object zero(FieldType type) {
+        return switch (type.kind()) {
+            case INT -> 0;
+            case LONG -> 0L;
+            case FLOAT -> 0f;
+            case DOUBLE -> 0d;
+            case DECIMAL -> BigDecimal.ZERO.setScale(type.scale());
+            default -> throw new AssertionError(type);
+        };
+    }
+
+    private static Object add(FieldType type, Object a, Object b) {
+        return switch (type.kind()) {
+            case INT -> (Integer) a + (Integer) b;
+            case LONG -> (Long) a + (Long) b;
+            case FLOAT -> (Float) a + (Float) b;
+            case DOUBLE -> (Double) a + (Double) b;
+            case DECIMAL -> ((BigDecimal) a).add((BigDecimal) b);
+            default -> throw new AssertionError(type);
+        };
+    }
+
+    @Override
+    public void write(ByteWriter out, State state) {
+        out.writeZigZag(state.latestVersion);
+        out.writeLong(state.latestHash);
+        for (int i = 0; i < rules.length; i++) {
+            FieldType type = schema.field(i).type();
+            FieldState f = state.fields[i];
+            switch (rules[i]) {
+                case UNION, SUM -> {
+                    out.writeVarInt(f.entries.size());
+                    for (Map.Entry<Object, Stamp> e : f.entries.entrySet()) {
+                        if (type.kind() == FieldType.Kind.MAP && rules[i] == FieldRule.UNION) {
+                            out.writeString((String) e.getKey());
+                        }
+                        writeStamp(out, e.getValue(), rules[i] == FieldRule.UNION ? type.element() : type);
+                    }
+                }
+                default -> {
+                    if (f.single == null) {
+                        out.write(0);
+                    } else {
+                        out.write(1);
+                        writeStamp(out, f.single, type);
+                    }
+                }
+            }
+        }
+    }
+
+    private static void writeStamp(ByteWriter out, Stamp s, FieldType type) {
+        out.writeZigZag(s.version);
+        RowCodec.writeValue(out, type.nullable(), s.value);
+    }
+
+    @Override
+    public State read(ByteReader in) {
+        long lv = in.readZigZag();
+        long lh = in.readLong();
+        FieldState[] fs = new FieldState[rules.length];
+        for (int i = 0; i < rules.length; i++) {
+            FieldType type = schema.field(i).type();
+            switch (rules[i]) {
+                case UNION, SUM -> {
+                    int n = in.readVarInt();
+                    if (n > in.remaining()) {
+                        throw OnefoldException.corrupt(in.source() + ": implausible entry count " + n);
+                    }
+                    TreeMap<Object, Stamp> entries = new TreeMap<>(ENTRY_KEYS);
+                    for (int k = 0; k < n; k++) {
+                        if (rules[i] == FieldRule.UNION && type.kind() == FieldType.Kind.MAP) {
+                            String key = in.readString();
+                            Stamp s = readStamp(in, type.element(), false);
+                            entries.put(key, s);
+                        } else if (rules[i] == FieldRule.UNION) {
+                            Stamp s = readStamp(in, type.element(), false);
+                            entries.put(s.bytes, s);
+                        } else {
+                            Stamp s = readStamp(in, type, false);
+                            entries.put(s.version, s);
+                        }
+                    }
+                    fs[i] = new FieldState(null, entries);
+                }
+                default -> {
+                    int present = in.read();
+                    boolean ordered = rules[i] == FieldRule.MAX || rules[i] == FieldRule.MIN;
+                    fs[i] = new FieldState(present == 0 ? null : readStamp(in, type, ordered), null);
+                }
+            }
+        }
+        return new State(lv, lh, fs);
+    }
+
+    private static Stamp readStamp(ByteReader in, FieldType type, boolean ordered) {
+        long v = in.readZigZag();
+        Object value = RowCodec.readValue(in, type.nullable());
+        byte[] bytes = ordered ? OrderedBytes.encode(type, value) : RowCodec.encodeValue(type, value);
+        return new Stamp(v, bytes, value);
+    }
+}

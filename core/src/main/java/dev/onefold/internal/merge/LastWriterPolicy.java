@@ -1,0 +1,86 @@
+package dev.onefold.internal.merge;
+
+import dev.onefold.OnefoldException;
+import dev.onefold.internal.bytes.ByteReader;
+import dev.onefold.internal.bytes.ByteWriter;
+import dev.onefold.internal.encoding.RowCodec;
+import dev.onefold.internal.encoding.RowSerde;
+import dev.onefold.record.FieldPath;
+import dev.onefold.record.Row;
+import java.util.Arrays;
+import java.util.List;
+
+/**
+ * Last writer by logical version: the state is one record, the maximum under the total order
+ * (version, canonical content bytes unsigned). An equal version with equal content is a duplicate; with
+ * different content a conflict, won by the greater content bytes. Max on a total order is a join.
+ * A winning tombstone hides the key and stays in the state, so an older late version cannot revive it.
+ */
+public final class LastWriterPolicy implements Policy<LastWriterPolicy.State> {
+
+    /** One record with its version and canonical bytes. */
+    public record State(long version, byte[] content, Row row, boolean deleted) {}
+
+    private final FieldPath version;
+    private final FieldPath tombstone;
+    private final RowSerde serde;
+
+    public LastWriterPolicy(FieldPath version, FieldPath tombstone, RowSerde serde) {
+        this.version = version;
+        this.tombstone = tombstone;
+        this.serde = serde;
+    }
+
+    @Override
+    public State lift(Row record) {
+        Object v = version.read(record);
+        if (v == null) {
+            throw OnefoldException.record("version field '" + version.path() + "' is null");
+        }
+        return new State(((Number) v).longValue(), RowCodec.encode(record), record, Tombstones.isSet(tombstone, record));
+    }
+
+    @Override
+    public State merge(State a, State b, MergeCounts counts) {
+        int c = Long.compare(a.version, b.version);
+        if (c == 0) {
+            c = Arrays.compareUnsigned(a.content, b.content);
+            if (c == 0) {
+                counts.duplicates++;
+                return a;
+            }
+            counts.conflicts++;
+        } else {
+            counts.superseded++;
+        }
+        return c > 0 ? a : b;
+    }
+
+    @Override
+    public List<Row> visible(State state) {
+        return state.deleted ? List.of() : List.of(state.row);
+    }
+
+    @Override
+    public Row anchor(State state) {
+        return state.row;
+    }
+
+    @Override
+    public boolean isDeleted(State state) {
+        return state.deleted;
+    }
+
+    @Override
+    public void write(ByteWriter out, State state) {
+        out.writeZigZag(state.version);
+        serde.write(out, state.row);
+    }
+
+    @Override
+    public State read(ByteReader in) {
+        long v = in.readZigZag();
+        Row row = serde.read(in);
+        return new State(v, RowCodec.encode(row), row, Tombstones.isSet(tombstone, row));
+    }
+}
