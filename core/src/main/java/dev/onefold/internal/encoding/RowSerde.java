@@ -34,4 +34,19 @@ public interface RowSerde {
             }
         };
     }
+
+    /** Rows through a payload codec, reading with the given writer id, length-prefixed. */
+    static RowSerde of(dev.onefold.spi.PayloadCodec codec, String readWriterId) {
+        return new RowSerde() {
+            @Override
+            public void write(ByteWriter out, Row row) {
+                out.writeBlob(codec.encode(row));
+            }
+
+            @Override
+            public Row read(ByteReader in) {
+                return codec.decode(readWriterId, in.readBlob());
+            }
+        };
+    }
 }
