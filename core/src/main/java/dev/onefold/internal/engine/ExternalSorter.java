@@ -52,6 +52,7 @@ public final class ExternalSorter<T> implements AutoCloseable {
     private final Path tempDir;
     private final boolean parallel;
     private final List<Path> runs = new ArrayList<>();
+    private int runsWritten;
     private Object[] buffer = new Object[1024];
     private int count;
     private long bytes;
@@ -79,9 +80,9 @@ public final class ExternalSorter<T> implements AutoCloseable {
         }
     }
 
-    /** Number of runs written to disk so far. */
+    /** Number of runs written to disk so far (still counted after they are deleted). */
     public int spilledRuns() {
-        return runs.size();
+        return runsWritten;
     }
 
     @SuppressWarnings("unchecked")
@@ -101,6 +102,7 @@ public final class ExternalSorter<T> implements AutoCloseable {
             Files.createDirectories(tempDir);
             Path run = Files.createTempFile(tempDir, "onefold-run-", ".tmp");
             runs.add(run);
+            runsWritten++;
             try (DataOutputStream out = new DataOutputStream(new BufferedOutputStream(Files.newOutputStream(run), 1 << 16))) {
                 ByteWriter w = new ByteWriter(256);
                 for (int i = 0; i < count; i++) {

@@ -1,0 +1,114 @@
+package dev.onefold;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.onefold.internal.engine.BoundDataset;
+import dev.onefold.internal.engine.KeyedState;
+import dev.onefold.internal.merge.MergeCounts;
+import dev.onefold.internal.merge.Policy;
+import dev.onefold.record.Row;
+import dev.onefold.testing.Fixtures;
+import dev.onefold.testing.Fixtures.Delivery;
+import dev.onefold.testing.Fixtures.PolicyCase;
+import dev.onefold.testing.Folding;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.LinkedHashSet;
+import java.util.List;
+import net.jqwik.api.Arbitrary;
+import net.jqwik.api.ForAll;
+import net.jqwik.api.Property;
+import net.jqwik.api.Provide;
+
+/**
+ * DESIGN.md promise 1 (convergence) and 2 (determinism) for every built-in policy: the merge state is a
+ * join-semilattice (commutative, associative, idempotent; Shapiro et al., INRIA RR-7687 section 2.3), so the
+ * result depends only on the set of records delivered, never on order, grouping or repetition.
+ */
+class ConvergencePropertiesTest {
+
+    @Provide
+    Arbitrary<Delivery> deliveries() {
+        return Fixtures.deliveries(Fixtures.rows(6).list().ofMinSize(1).ofMaxSize(30));
+    }
+
+    @Provide
+    Arbitrary<List<Row>> sameKeyTriples() {
+        return Fixtures.rows(1).list().ofSize(3);
+    }
+
+    // --- order, duplication and batching independence
+
+    @Property(tries = 1000)
+    void dedupe_resultIndependentOfOrderDuplicationAndBatching(@ForAll PolicyCase policy, @ForAll("deliveries") Delivery d) {
+        BoundDataset ds = Folding.bind(Fixtures.spec(policy));
+        List<Row> distinct = new ArrayList<>(new LinkedHashSet<>(d.records()));
+        List<Row> stream = new ArrayList<>();
+        d.batches().forEach(stream::addAll);
+
+        List<KeyedState> reference = Folding.fold(ds, distinct, 1 << 20);
+        List<KeyedState> delivered = Folding.fold(ds, stream, 1 << 20);
+        List<KeyedState> batched = Folding.foldBatches(ds, d.batches(), 1 << 20);
+        assertEquals(Folding.hex(reference), Folding.hex(delivered), "duplicated, shuffled delivery");
+        assertEquals(Folding.hex(reference), Folding.hex(batched), "batches folded separately, then together");
+
+        BatchEngine<Row> engine = BatchEngine.forRows(Fixtures.spec(policy), Fixtures.SCHEMA);
+        List<Row> out = engine.dedupe(stream).survivors();
+        assertEquals(engine.dedupe(distinct).survivors(), out);
+        assertEquals(Folding.publish(ds, batched), out);
+    }
+
+    @Property(tries = 300)
+    void dedupe_spilledRunEqualsInMemoryRun(@ForAll PolicyCase policy, @ForAll("deliveries") Delivery d) {
+        BoundDataset ds = Folding.bind(Fixtures.spec(policy));
+        List<Row> stream = new ArrayList<>();
+        d.batches().forEach(stream::addAll);
+        // a 1 KiB budget forces a spill every few records
+        assertEquals(Folding.hex(Folding.fold(ds, stream, 1 << 20)), Folding.hex(Folding.fold(ds, stream, 1024)));
+        BatchEngine<Row> tiny = BatchEngine.builder(Fixtures.spec(policy), dev.onefold.spi.RecordAccess.rows(Fixtures.SCHEMA))
+                .memoryBudgetBytes(2048).build();
+        BatchResult<Row> spilled = tiny.dedupe(stream);
+        assertEquals(BatchEngine.forRows(Fixtures.spec(policy), Fixtures.SCHEMA).dedupe(stream).survivors(), spilled.survivors());
+    }
+
+    // --- the semilattice laws on states of one key
+
+    @Property(tries = 1000)
+    void merge_isCommutativeAssociativeIdempotent(@ForAll PolicyCase policy, @ForAll("sameKeyTriples") List<Row> rows) {
+        Policy<Object> p = Folding.bind(Fixtures.spec(policy)).policy();
+        Object a = p.lift(rows.get(0));
+        Object b = p.lift(rows.get(1));
+        Object c = p.lift(rows.get(2));
+        MergeCounts counts = new MergeCounts();
+        assertBytes(p, p.merge(a, b, counts), p.merge(b, a, counts), "commutative");
+        assertBytes(p, p.merge(p.merge(a, b, counts), c, counts), p.merge(a, p.merge(b, c, counts), counts), "associative");
+        Object ab = p.merge(a, b, counts);
+        assertBytes(p, ab, p.merge(ab, ab, counts), "idempotent");
+        assertBytes(p, ab, p.merge(ab, a, counts), "absorbs an already merged version (a <= a join b)");
+    }
+
+    private static void assertBytes(Policy<Object> p, Object x, Object y, String law) {
+        assertTrue(Arrays.equals(p.toBytes(x), p.toBytes(y)), law + " law broken");
+    }
+
+    @Property(tries = 200)
+    void dedupe_outputSortedWithOneRecordPerVisibleKey(@ForAll PolicyCase policy, @ForAll("deliveries") Delivery d) {
+        BoundDataset ds = Folding.bind(Fixtures.spec(policy));
+        List<Row> stream = new ArrayList<>();
+        d.batches().forEach(stream::addAll);
+        BatchResult<Row> r = BatchEngine.forRows(Fixtures.spec(policy), Fixtures.SCHEMA).dedupe(stream);
+        for (int i = 1; i < r.survivors().size(); i++) {
+            byte[] prev = ds.order(r.survivors().get(i - 1));
+            byte[] cur = ds.order(r.survivors().get(i));
+            assertTrue(Arrays.compareUnsigned(prev, cur) <= 0, "output sorted by order then key");
+        }
+        long keys = r.survivors().stream().map(x -> x.get("k")).distinct().count();
+        if (policy != PolicyCase.VECTOR_KEEP_ALL) {
+            assertEquals(keys, r.survivors().size(), "one record per key");
+        }
+        BatchReport rep = r.report();
+        assertEquals(rep.in(), rep.accepted() + rep.rejected());
+        assertEquals(rep.keys() - rep.tombstonedKeys(), keys);
+    }
+}
