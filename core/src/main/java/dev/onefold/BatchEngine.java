@@ -3,6 +3,9 @@ package dev.onefold;
 import dev.onefold.internal.engine.BoundDataset;
 import dev.onefold.internal.engine.CloseableIterator;
 import dev.onefold.internal.engine.Consolidator;
+import dev.onefold.internal.engine.HashConsolidator;
+import dev.onefold.internal.engine.KeyedState;
+import dev.onefold.internal.merge.MergeCounts;
 import dev.onefold.internal.engine.Publisher;
 import dev.onefold.record.Row;
 import dev.onefold.spi.RecordAccess;
@@ -79,8 +82,9 @@ public final class BatchEngine<R> {
             Consumer<Rejection> rejects) {
         Objects.requireNonNull(records, "records");
         long in = 0;
-        try (Consolidator consolidator = new Consolidator(dataset, budget / 2, spillDir, parallel);
-                Publisher publisher = new Publisher(dataset, budget / 2, spillDir, parallel)) {
+        HashConsolidator fast = new HashConsolidator(dataset, budget / 2, parallel);
+        Consolidator spilling = null;
+        try (Publisher publisher = new Publisher(dataset, budget / 2, spillDir, parallel)) {
             while (records.hasNext()) {
                 R record = records.next();
                 long position = in++;
@@ -91,24 +95,52 @@ public final class BatchEngine<R> {
                     if (e.kind() != OnefoldException.Kind.INVALID_RECORD) {
                         throw e;
                     }
-                    consolidator.reject(source, position, e.getMessage(), record, rejects);
+                    if (spilling != null) {
+                        spilling.reject(source, position, e.getMessage(), record, rejects);
+                    } else {
+                        fast.reject(source, position, e.getMessage(), record);
+                    }
                     continue;
                 }
-                consolidator.add(row, source, position, record, rejects);
+                if (spilling == null && !fast.add(row, source, position, record)) {
+                    // the batch outgrew memory: continue on the sorting, spilling path
+                    spilling = new Consolidator(dataset, budget / 2, spillDir, parallel);
+                    fast.transferTo(spilling, rejects);
+                }
+                if (spilling != null) {
+                    spilling.add(row, source, position, record, rejects);
+                }
             }
-            try (CloseableIterator<dev.onefold.internal.engine.KeyedState> folded = consolidator.folded()) {
-                publisher.addAll(folded);
+            long accepted;
+            long rejected;
+            MergeCounts counts;
+            int runs = 0;
+            if (spilling == null) {
+                fast.fold(rejects).forEach(publisher::add);
+                accepted = fast.accepted();
+                rejected = fast.rejected();
+                counts = fast.counts();
+            } else {
+                try (Consolidator c = spilling; CloseableIterator<KeyedState> folded = c.folded()) {
+                    publisher.addAll(folded);
+                    accepted = c.accepted();
+                    rejected = c.rejected();
+                    counts = c.counts();
+                    runs = c.spilledRuns();
+                }
             }
             try (CloseableIterator<Row> out = publisher.sorted()) {
                 while (out.hasNext()) {
                     survivors.accept(access.fromRow(out.next()));
                 }
             }
-            var counts = consolidator.counts();
-            return new BatchReport(in, consolidator.accepted(), consolidator.rejected(), counts.duplicates,
-                    counts.superseded, counts.conflicts, publisher.keys(), publisher.keysWithSiblings(),
-                    publisher.deletedKeys(), publisher.out(), consolidator.spilledRuns() + publisher.spilledRuns(),
-                    !dataset.policy().isJoin());
+            return new BatchReport(in, accepted, rejected, counts.duplicates, counts.superseded, counts.conflicts,
+                    publisher.keys(), publisher.keysWithSiblings(), publisher.deletedKeys(), publisher.out(),
+                    runs + publisher.spilledRuns(), !dataset.policy().isJoin());
+        } finally {
+            if (spilling != null) {
+                spilling.close();
+            }
         }
     }
 
@@ -116,7 +148,7 @@ public final class BatchEngine<R> {
     public static final class Builder<R> {
         private final DatasetSpec spec;
         private final RecordAccess<R> access;
-        private long budget = Math.min(256L << 20, Runtime.getRuntime().maxMemory() / 4);
+        private long budget = Runtime.getRuntime().maxMemory() * 2 / 5;
         private Path spillDir = Path.of(System.getProperty("java.io.tmpdir"));
         private boolean parallel = true;
 
@@ -125,7 +157,7 @@ public final class BatchEngine<R> {
             this.access = Objects.requireNonNull(access, "access");
         }
 
-        /** Memory the engine may hold for records before spilling (default: a quarter of the heap, at most 256 MiB). */
+        /** Memory the engine may hold for records before spilling (default: 40% of the maximum heap). */
         public Builder<R> memoryBudgetBytes(long bytes) {
             if (bytes < 1024) {
                 throw OnefoldException.usage("memory budget must be at least 1024 bytes, got " + bytes);

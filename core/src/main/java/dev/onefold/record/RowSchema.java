@@ -117,7 +117,7 @@ public final class RowSchema {
 
     @Override
     public boolean equals(Object o) {
-        return o instanceof RowSchema s && s.name.equals(name) && s.fields.equals(fields);
+        return o == this || o instanceof RowSchema s && s.name.equals(name) && s.fields.equals(fields);
     }
 
     @Override

@@ -40,7 +40,7 @@ public interface RecordAccess<R> {
 
             @Override
             public Row toRow(Row record) {
-                if (!record.schema().equals(schema)) {
+                if (record.schema() != schema && !record.schema().equals(schema)) {
                     throw dev.onefold.OnefoldException.record("record of schema " + record.schema().name()
                             + " does not have the dataset's schema " + schema.name());
                 }

@@ -14,17 +14,27 @@ public final class KeyedState {
     /** Key bytes ascending, then state bytes ascending: the canonical fold order. */
     public static final Comparator<KeyedState> BY_KEY_THEN_STATE = (a, b) -> {
         int c = Arrays.compareUnsigned(a.key, b.key);
-        return c != 0 ? c : Arrays.compareUnsigned(a.stateBytes, b.stateBytes);
+        return c != 0 ? c : Arrays.compareUnsigned(a.stateBytes(), b.stateBytes());
     };
 
     private final byte[] key;
-    private final byte[] stateBytes;
+    private byte[] stateBytes;
     private Object state;
+    private final Policy<Object> policy;
 
     public KeyedState(byte[] key, byte[] stateBytes, Object state) {
+        this(key, stateBytes, state, null);
+    }
+
+    /** A state whose bytes are computed by {@code policy} only if someone asks for them. */
+    public KeyedState(byte[] key, byte[] stateBytes, Object state, Policy<Object> policy) {
+        if (stateBytes == null && (state == null || policy == null)) {
+            throw new IllegalArgumentException("a keyed state needs its bytes, or its state and policy");
+        }
         this.key = key;
         this.stateBytes = stateBytes;
         this.state = state;
+        this.policy = policy;
     }
 
     public byte[] key() {
@@ -32,6 +42,9 @@ public final class KeyedState {
     }
 
     public byte[] stateBytes() {
+        if (stateBytes == null) {
+            stateBytes = policy.toBytes(state);
+        }
         return stateBytes;
     }
 
@@ -49,7 +62,7 @@ public final class KeyedState {
             @Override
             public void write(ByteWriter out, KeyedState item) {
                 out.writeBlob(item.key);
-                out.writeBlob(item.stateBytes);
+                out.writeBlob(item.stateBytes());
             }
 
             @Override
@@ -60,7 +73,7 @@ public final class KeyedState {
             @Override
             public long estimatedBytes(KeyedState item) {
                 // arrays, headers, and the decoded state, which is typically about twice its bytes
-                return 96L + item.key.length + 3L * item.stateBytes.length;
+                return 96L + item.key.length + 3L * item.stateBytes().length;
             }
         };
     }

@@ -23,13 +23,24 @@ public final class Publisher implements AutoCloseable {
     /** A visible row with its order bytes. */
     public static final class OrderedRow {
         final byte[] order;
+        /** The first eight order bytes as an unsigned number, so most comparisons never touch the array. */
+        final long prefix;
         final Row row;
         private byte[] content;
 
         OrderedRow(byte[] order, Row row, byte[] content) {
             this.order = order;
+            this.prefix = prefix(order);
             this.row = row;
             this.content = content;
+        }
+
+        private static long prefix(byte[] order) {
+            long p = 0;
+            for (int i = 0; i < 8; i++) {
+                p = (p << 8) | (i < order.length ? order[i] & 0xFF : 0);
+            }
+            return p;
         }
 
         byte[] content() {
@@ -45,7 +56,11 @@ public final class Publisher implements AutoCloseable {
     }
 
     private static final Comparator<OrderedRow> ORDER = (a, b) -> {
-        int c = Arrays.compareUnsigned(a.order, b.order);
+        int c = Long.compareUnsigned(a.prefix, b.prefix);
+        if (c != 0) {
+            return c;
+        }
+        c = Arrays.compareUnsigned(a.order, b.order);
         return c != 0 ? c : Arrays.compareUnsigned(a.content(), b.content());
     };
 
@@ -80,7 +95,7 @@ public final class Publisher implements AutoCloseable {
 
             @Override
             public long estimatedBytes(OrderedRow item) {
-                return 160L + item.order.length * 2L + item.content().length * 3L;
+                return 200L + item.order.length * 2L + RowSizes.estimate(item.row);
             }
         };
     }

@@ -18,8 +18,35 @@ import java.util.List;
  */
 public final class LastWriterPolicy implements Policy<LastWriterPolicy.State> {
 
-    /** One record with its version and canonical bytes. */
-    public record State(long version, byte[] content, Row row, boolean deleted) {}
+    /** One record with its version; its canonical bytes are computed only when a tie needs them. */
+    public static final class State {
+        private final long version;
+        private final Row row;
+        private final boolean deleted;
+        private byte[] content;
+
+        State(long version, Row row, boolean deleted, byte[] content) {
+            this.version = version;
+            this.row = row;
+            this.deleted = deleted;
+            this.content = content;
+        }
+
+        public long version() {
+            return version;
+        }
+
+        public Row row() {
+            return row;
+        }
+
+        byte[] content() {
+            if (content == null) {
+                content = RowCodec.encode(row);
+            }
+            return content;
+        }
+    }
 
     private final FieldPath version;
     private final FieldPath tombstone;
@@ -37,14 +64,14 @@ public final class LastWriterPolicy implements Policy<LastWriterPolicy.State> {
         if (v == null) {
             throw OnefoldException.record("version field '" + version.path() + "' is null");
         }
-        return new State(((Number) v).longValue(), RowCodec.encode(record), record, Tombstones.isSet(tombstone, record));
+        return new State(((Number) v).longValue(), record, Tombstones.isSet(tombstone, record), null);
     }
 
     @Override
     public State merge(State a, State b, MergeCounts counts) {
         int c = Long.compare(a.version, b.version);
         if (c == 0) {
-            c = Arrays.compareUnsigned(a.content, b.content);
+            c = Arrays.compareUnsigned(a.content(), b.content());
             if (c == 0) {
                 counts.duplicates++;
                 return a;
@@ -81,6 +108,6 @@ public final class LastWriterPolicy implements Policy<LastWriterPolicy.State> {
     public State read(ByteReader in) {
         long v = in.readZigZag();
         Row row = serde.read(in);
-        return new State(v, RowCodec.encode(row), row, Tombstones.isSet(tombstone, row));
+        return new State(v, row, Tombstones.isSet(tombstone, row), null);
     }
 }
