@@ -65,7 +65,8 @@ public final class Divergence<R> {
             sb.append(" (").append(context).append(')');
         }
         sb.append('\n');
-        sb.append("  smallest failing schedule found: ").append(smallestSteps.size()).append(" steps");
+        sb.append("  smallest failing schedule found: ").append(smallestSteps.size())
+                .append(smallestSteps.size() == 1 ? " step" : " steps");
         if (shrinkRuns > 0) {
             sb.append(", shrunk from ").append(schedule.steps().size()).append(" in ").append(shrinkRuns).append(" runs");
         }
