@@ -59,7 +59,7 @@ class ConvergencePropertiesTest {
         assertEquals(Folding.publish(ds, batched), out);
     }
 
-    @Property(tries = 300)
+    @Property(tries = 1000)
     void dedupe_spilledRunEqualsInMemoryRun(@ForAll PolicyCase policy, @ForAll("deliveries") Delivery d) {
         BoundDataset ds = Folding.bind(Fixtures.spec(policy));
         List<Row> stream = new ArrayList<>();
@@ -92,7 +92,7 @@ class ConvergencePropertiesTest {
         assertTrue(Arrays.equals(p.toBytes(x), p.toBytes(y)), law + " law broken");
     }
 
-    @Property(tries = 200)
+    @Property(tries = 1000)
     void dedupe_outputSortedWithOneRecordPerVisibleKey(@ForAll PolicyCase policy, @ForAll("deliveries") Delivery d) {
         BoundDataset ds = Folding.bind(Fixtures.spec(policy));
         List<Row> stream = new ArrayList<>();
@@ -110,5 +110,24 @@ class ConvergencePropertiesTest {
         BatchReport rep = r.report();
         assertEquals(rep.in(), rep.accepted() + rep.rejected());
         assertEquals(rep.keys() - rep.tombstonedKeys(), keys);
+    }
+
+    @Property(tries = 1000)
+    void dedupe_parallelRunEqualsSingleThreadedRun(@ForAll PolicyCase policy, @ForAll("deliveries") Delivery d) {
+        List<Row> stream = new ArrayList<>();
+        d.batches().forEach(stream::addAll);
+        // repeat the delivery so the batch is large enough for the parallel paths to engage
+        List<Row> big = new ArrayList<>();
+        for (int i = 0; i < 200; i++) {
+            big.addAll(stream);
+        }
+        BatchEngine<Row> serial = BatchEngine.builder(Fixtures.spec(policy), dev.onefold.spi.RecordAccess.rows(Fixtures.SCHEMA))
+                .parallel(false).build();
+        BatchEngine<Row> parallel = BatchEngine.builder(Fixtures.spec(policy), dev.onefold.spi.RecordAccess.rows(Fixtures.SCHEMA))
+                .parallel(true).build();
+        BatchResult<Row> a = serial.dedupe(big);
+        BatchResult<Row> b = parallel.dedupe(big);
+        assertEquals(a.survivors(), b.survivors());
+        assertEquals(a.report(), b.report());
     }
 }
