@@ -38,6 +38,17 @@ class DigestPropertiesTest {
         assertEquals(once, digests(spec, delivered, RecordDigests.Mode.DELIVERIES), "shuffled and duplicated");
     }
 
+    @Property(tries = 100)
+    void sources_keepTheDigestSourceContract(@ForAll("deliveries") Delivery d, @ForAll PolicyCase policy) {
+        DatasetSpec spec = ReconcileFixtures.spec(policy);
+        List<Row> delivered = new ArrayList<>();
+        d.batches().forEach(delivered::addAll);
+        DigestSourceContract.verify(ReconcileFixtures.source("log", spec, delivered, RecordDigests.Mode.DELIVERIES),
+                Fixtures.SCHEMA);
+        DigestSourceContract.verify(ReconcileFixtures.source("store", spec, delivered, RecordDigests.Mode.STORE),
+                Fixtures.SCHEMA);
+    }
+
     @Property(tries = 150)
     void digests_storeReadBySeveralWorkersCombinesToTheWhole(@ForAll("deliveries") Delivery d, @ForAll PolicyCase policy,
             @ForAll long seed) {

@@ -111,6 +111,7 @@ class JdbcDigestsTest {
 
     @Test
     void compare_tableLoadedWithTheSameRecordsAgrees() throws SQLException {
+        DigestSourceContract.verify(table(), SCHEMA);
         ReconciliationReport report = Reconciliation.defaults().compare(log(), table());
         assertEquals("agree", report.status(), report.summary());
         assertEquals(4, report.partitions().size());

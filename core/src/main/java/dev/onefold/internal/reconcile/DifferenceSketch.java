@@ -28,7 +28,8 @@ import java.util.Arrays;
  *
  * <h2>Sizing</h2>
  * {@link #widthFor(long)}: the smallest allowed width w with 3w &ge; {@value #ALPHA} d (above the peeling
- * threshold for three hash functions) and w^3 &ge; d^2 / (2 &times; {@value #FAILURE_TARGET}). The second bound
+ * threshold for three hash functions, about 1.222 cells per element by Goodrich and Mitzenmacher, a value quoted
+ * from memory in REFERENCES.md) and w^3 &ge; d^2 / (2 &times; {@value #FAILURE_TARGET}). The second bound
  * is ours: the commonest way peeling gets stuck is two elements sharing all three cells, which happens with
  * probability about C(d, 2) / w^3; keeping that under the target keeps small differences, which need
  * proportionally more cells, at about 99% success. Resulting sizes: d = 10: 72 cells; d = 100: 288;
