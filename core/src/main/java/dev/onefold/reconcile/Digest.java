@@ -45,6 +45,19 @@ public record Digest(long keys, long records, long contentHash, List<BigDecimal>
     }
 
     /**
+     * The hash one key contributes: the sum modulo 2^64 of {@link #recordHash} over the key's visible records
+     * (one, or one per sibling), so it does not depend on the order of siblings. A partition's
+     * {@link #contentHash()} is the sum of its keys' hashes; reconciliation drill-down compares these per key.
+     */
+    public static long keyHash(byte[] key, List<Row> visibleRows) {
+        long h = 0;
+        for (Row r : visibleRows) {
+            h += recordHash(key, RowCodec.encode(r));
+        }
+        return h;
+    }
+
+    /**
      * The digest of two disjoint sets of keys (for example two partitions).
      *
      * @throws IllegalArgumentException when the digests carry different numbers of aggregates
@@ -132,15 +145,40 @@ public record Digest(long keys, long records, long contentHash, List<BigDecimal>
                 keys++;
                 lastKey = key;
             }
+            addRecord(key, row);
+            return this;
+        }
+
+        /**
+         * Adds all visible records of one key not added before (empty adds nothing: a deleted key is not live).
+         *
+         * @return the key's hash, {@link #keyHash}
+         */
+        public long addKey(byte[] key, List<Row> visibleRows) {
+            Objects.requireNonNull(key, "key");
+            if (visibleRows.isEmpty()) {
+                return 0;
+            }
+            keys++;
+            lastKey = key;
+            long h = 0;
+            for (Row r : visibleRows) {
+                h += addRecord(key, r);
+            }
+            return h;
+        }
+
+        private long addRecord(byte[] key, Row row) {
+            long h = recordHash(key, RowCodec.encode(row));
             records++;
-            hash += recordHash(key, RowCodec.encode(row));
+            hash += h;
             for (int i = 0; i < paths.length; i++) {
                 Object v = paths[i].read(row);
                 if (v != null) {
                     agg[i] = combine(checks.get(i).aggregate(), agg[i], toDecimal(v));
                 }
             }
-            return this;
+            return h;
         }
 
         public Digest build() {
