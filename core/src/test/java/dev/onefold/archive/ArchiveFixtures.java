@@ -58,7 +58,7 @@ final class ArchiveFixtures {
 
     static Archive.Builder<Row> builder(DatasetSpec spec, Storage storage) {
         return Archive.builder(spec, RecordAccess.rows(EVENT)).storage(storage).clock(FIXED).chunkTargetBytes(4096)
-                .parallelism(2);
+                .parallelism(1);
     }
 
     /** Random events: ids from a small pool (so keys repeat), hours from a window (so keys move), some deletes. */

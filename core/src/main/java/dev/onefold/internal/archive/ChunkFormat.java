@@ -52,8 +52,8 @@ public final class ChunkFormat {
 
     /** Collects entries in ascending order into blocks, then produces the file bytes. */
     public static final class Builder {
-        private final ByteWriter data = new ByteWriter(1 << 16);
-        private final ByteWriter block = new ByteWriter(1 << 16);
+        private final ByteWriter data = new ByteWriter(1024);
+        private final ByteWriter block = new ByteWriter(1024);
         private final RoaringBitmap index = new RoaringBitmap();
         private int blockEntries;
         private int blocks;
