@@ -31,8 +31,8 @@ import org.roaringbitmap.RoaringBitmap;
  * </pre>
  * Entries are strictly ascending by order bytes (which end with the key, so no two keys tie). The key hash is
  * the low 32 bits of XXH64(key bytes, seed 0). {@link ChunkValidator} names every check. A reader verifies
- * the frame and trailer on open and each block's checksum as it reaches it, so a damaged chunk fails loudly
- * naming the file and never yields wrong entries.
+ * the frame, trailer, header and index checksums on open and each block's checksum as it reaches it, so a
+ * damaged chunk fails loudly naming the file and never yields wrong entries.
  *
  * <p>Stateless and thread-safe; {@link Builder} and {@link Reader} are not thread-safe.
  */
@@ -170,6 +170,12 @@ public final class ChunkFormat {
             minOrder = h.readBlob();
             maxOrder = h.readBlob();
             dataStart = in.position();
+            ByteReader index = new ByteReader(bytes, (int) indexOffset, t - (int) indexOffset, file);
+            Sections.read(index, file, "key-hash index");
+            if (index.hasMore()) {
+                throw ChunkValidator.problem(file, ChunkValidator.Problem.BAD_TRAILER, index.remaining()
+                        + " bytes between the key-hash index and the trailer");
+            }
         }
 
         public String file() { return file; }
