@@ -4,10 +4,14 @@ import static dev.onefold.archive.ArchiveFixtures.DAY0;
 import static dev.onefold.archive.ArchiveFixtures.HOUR;
 import static dev.onefold.archive.ArchiveFixtures.event;
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.onefold.DatasetSpec;
 import dev.onefold.record.Row;
+import dev.onefold.OnefoldException;
+import dev.onefold.internal.archive.MemoryStorage;
+import dev.onefold.spi.PayloadCodec;
 import dev.onefold.spi.Storage;
 import java.time.Duration;
 import java.util.ArrayList;
@@ -74,11 +78,35 @@ class ArchiveApplyTest {
 
     @Test
     void apply_tombstonesDroppedPastHorizonOnlyWhenPartitionRewritten() {
-        Archive<Row> a = ArchiveFixtures.builder(lww, Storage.inMemory()).tombstoneHorizon(Duration.ZERO).open();
-        a.apply(List.of(event("x", 1, DAY0, 1L, false), event("y", 1, DAY0, 1L, false)));
-        ApplyReport del = a.apply(List.of(event("x", 2, DAY0, null, true)));
-        assertEquals(0, del.tombstonesDropped(), "a fresh tombstone is not older than the horizon");
-        assertEquals(1, a.snapshot().partitions().get(0).tombstones());
+        java.util.concurrent.atomic.AtomicLong now = new java.util.concurrent.atomic.AtomicLong(DAY0);
+        java.time.Clock clock = new java.time.Clock() {
+            @Override
+            public java.time.ZoneId getZone() {
+                return java.time.ZoneOffset.UTC;
+            }
+
+            @Override
+            public java.time.Clock withZone(java.time.ZoneId zone) {
+                return this;
+            }
+
+            @Override
+            public java.time.Instant instant() {
+                return java.time.Instant.ofEpochMilli(now.get());
+            }
+        };
+        Archive<Row> a = ArchiveFixtures.builder(lww, Storage.inMemory()).clock(clock)
+                .tombstoneHorizon(Duration.ofDays(1)).open();
+        a.apply(List.of(event("x", 1, DAY0, 1L, false), event("y", 1, DAY0, 1L, false),
+                event("z", 1, DAY0 + HOUR, 1L, false)));
+        ApplyReport del = a.apply(List.of(event("x", 2, DAY0, null, true), event("z", 2, DAY0 + HOUR, null, true)));
+        assertEquals(0, del.tombstonesDropped(), "a fresh tombstone is younger than the horizon");
+        now.addAndGet(2 * 86_400_000L);
+        ApplyReport later = a.apply(List.of(event("y", 2, DAY0, 2L, false)));
+        assertEquals(1, later.tombstonesDropped(), "only the rewritten partition drops its old tombstone");
+        List<PartitionInfo> parts = a.snapshot().partitions();
+        assertEquals(List.of(0L, 1L), parts.stream().map(PartitionInfo::tombstones).toList());
+        assertEquals(List.of(1L, 1L), parts.stream().map(PartitionInfo::entries).toList());
     }
 
     // --- large partitions and parallelism
@@ -112,5 +140,77 @@ class ArchiveApplyTest {
         assertEquals(ArchiveFixtures.rows(serial), ArchiveFixtures.rows(parallel));
         assertEquals(serial.snapshot().partitions().stream().map(p -> p.digest()).toList(),
                 parallel.snapshot().partitions().stream().map(p -> p.digest()).toList());
+    }
+
+    // --- versions, codecs, cleanup
+
+    @Test
+    void snapshot_olderVersionStaysReadableAfterNewCommits() {
+        Archive<Row> a = ArchiveFixtures.builder(lww, Storage.inMemory()).open();
+        Row v1 = event("x", 1, DAY0, 1L, false);
+        a.apply(List.of(v1));
+        a.apply(List.of(event("x", 2, DAY0, 2L, false)));
+        try (var s = a.snapshot(1).rows()) {
+            assertEquals(List.of(v1), s.toList());
+        }
+        assertEquals(List.of(1L, 2L), a.versions());
+    }
+
+    @Test
+    void apply_chunksOfAnOlderWriterIdAreReadThroughTheCodecAndRewritten() {
+        Storage storage = Storage.inMemory();
+        Archive<Row> v1 = ArchiveFixtures.builder(lww, storage).open();
+        List<Row> first = ArchiveFixtures.randomEvents(new Random(4), 200, 80, 3);
+        v1.apply(first);
+        PayloadCodec canonical = PayloadCodec.canonical(ArchiveFixtures.EVENT);
+        List<String> idsRead = new java.util.concurrent.CopyOnWriteArrayList<>();
+        PayloadCodec evolved = new PayloadCodec() {
+            @Override
+            public String writerId() {
+                return "evolved-2";
+            }
+
+            @Override
+            public byte[] encode(Row row) {
+                return canonical.encode(row);
+            }
+
+            @Override
+            public Row decode(String writerId, byte[] bytes) {
+                idsRead.add(writerId);
+                return canonical.decode(writerId.equals("evolved-2") ? canonical.writerId() : writerId, bytes);
+            }
+        };
+        Archive<Row> v2 = ArchiveFixtures.builder(lww, storage).codec(evolved).open();
+        List<Row> second = ArchiveFixtures.randomEvents(new Random(5), 50, 80, 1);
+        v2.apply(second);
+        assertTrue(idsRead.contains(canonical.writerId()));
+        List<Row> all = new ArrayList<>(first);
+        all.addAll(second);
+        assertEquals(ArchiveFixtures.model(lww, all), ArchiveFixtures.rows(v2));
+        assertTrue(v2.verify().ok(), () -> v2.verify().problems().toString());
+        OnefoldException e = assertThrows(OnefoldException.class, () -> ArchiveFixtures.rows(v1));
+        assertEquals(OnefoldException.Kind.INVALID_SCHEMA, e.kind());
+    }
+
+    @Test
+    void sweep_deletesOrphansAndExpiredVersionsButKeepsLatestContent() {
+        MemoryStorage memory = new MemoryStorage(java.time.Clock.offset(ArchiveFixtures.FIXED, Duration.ofHours(-2)));
+        Archive<Row> a = ArchiveFixtures.builder(lww, memory).open();
+        for (int i = 0; i < 4; i++) {
+            a.apply(ArchiveFixtures.randomEvents(new Random(20 + i), 100, 60, 3));
+        }
+        memory.write("chunks/=2024-02-29T00/orphan-of-a-crashed-writer.chunk", new byte[] {1, 2, 3});
+        List<Row> before = ArchiveFixtures.rows(a);
+        SweepReport r = a.sweep(SweepRules.defaults());
+        assertEquals(List.of(1L, 2L), r.expiredVersions());
+        assertTrue(r.deletedFiles().contains("chunks/=2024-02-29T00/orphan-of-a-crashed-writer.chunk"));
+        assertEquals(before, ArchiveFixtures.rows(a));
+        assertEquals(List.of(3L, 4L), a.versions());
+        assertTrue(a.verify().ok(), () -> a.verify().problems().toString());
+        try (var s = a.snapshot(3).rows()) {
+            assertTrue(s.count() > 0);
+        }
+        assertEquals(OnefoldException.Kind.USAGE, assertThrows(OnefoldException.class, () -> a.snapshot(1)).kind());
     }
 }
