@@ -36,7 +36,7 @@ class ArchiveConvergenceProperties {
         // stable partitions are only declared when they hold: every key keeps one hour
         DatasetSpec spec = ArchiveFixtures.spec(policy, stable);
         Random r = new Random(seed);
-        List<Row> records = ArchiveFixtures.randomEvents(r, 10 + r.nextInt(80), 1 + r.nextInt(30), stable ? 1 : 4);
+        List<Row> records = ArchiveFixtures.randomEvents(r, 10 + r.nextInt(40), 1 + r.nextInt(20), stable ? 1 : 4);
         List<Row> deliveries = new ArrayList<>(records);
         for (int i = r.nextInt(records.size()); i > 0; i--) {
             deliveries.add(records.get(r.nextInt(records.size())));
