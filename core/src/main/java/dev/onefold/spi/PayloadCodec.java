@@ -29,4 +29,9 @@ public interface PayloadCodec {
      *     writer schema is unknown or cannot be resolved to the current one; the message names the id
      */
     Row decode(String writerId, byte[] bytes);
+
+    /** Core's default: canonical row bytes of one schema, writer id derived from the schema (no resolution). */
+    static PayloadCodec canonical(dev.onefold.record.RowSchema schema) {
+        return new dev.onefold.internal.encoding.CanonicalPayloadCodec(schema);
+    }
 }
