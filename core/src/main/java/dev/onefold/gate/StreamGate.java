@@ -71,12 +71,15 @@ import java.util.function.LongSupplier;
  * already released takes the late path: decided at once, merged like any other, flagged {@link Decision#late()}
  * and counted. Released decisions are returned by whichever call released them.
  *
- * <h2>Memory bound</h2>
- * Records in flight (held, or emitted and awaiting acknowledgement) are bounded by count and estimated bytes.
- * When the bound is full, {@link WhenFull#BLOCK} waits for acknowledgements and releases held records early only
- * when nothing awaits one; {@link WhenFull#RELEASE_EARLY} first releases the earliest held records (flagged and
- * counted), then waits. Waiting gives up after the block timeout with an exception; the record is then not
- * taken and may be offered again. After every offer, in-flight records are at most the bound.
+ * <h2>Memory bounds</h2>
+ * Two bounds, each by count and estimated bytes. Emitted records awaiting acknowledgement: an offer waits (back
+ * pressure) while that bound is full, so acknowledge from another thread than the one that offers, or before
+ * offering again. Held records: when that bound is full, {@link WhenFull#RELEASE_EARLY} (the default) releases
+ * the earliest held records before the watermark passes them (flagged {@link Decision#releasedEarly()} and
+ * counted; they stay in event-time order), and {@link WhenFull#BLOCK} waits until another thread's call
+ * releases some. Waiting gives up after the block timeout with an exception, and the record is not taken. After
+ * every offer, held records are at most their bound, and held plus awaiting records at most the sum of both
+ * bounds (one call may release several held records into emits).
  *
  * <h2>Thread-safety and cost</h2>
  * Safe to share: every method takes one lock, and a blocked {@link #offer} releases it while waiting, so sinks
@@ -88,11 +91,11 @@ import java.util.function.LongSupplier;
  */
 public final class StreamGate<R> {
 
-    /** What an offer does when the in-flight bound is full. */
+    /** What an offer does when the bound on held records is full. */
     public enum WhenFull {
-        /** Wait for acknowledgements; release held records early only when nothing awaits an acknowledgement. */
+        /** Wait until another thread's call releases held records (or {@link #flush()} runs). */
         BLOCK,
-        /** Release the earliest held records first, then wait for acknowledgements. */
+        /** Release the earliest held records before the watermark passes them. */
         RELEASE_EARLY
     }
 
@@ -109,9 +112,11 @@ public final class StreamGate<R> {
     private final SeenStates seen;
     private final ReorderBuffer<R> reorder;
     private final FieldPath eventTime;
-    private final long maxInFlightRecords;
-    private final long maxInFlightBytes;
-    private final WhenFull whenFull;
+    private final long maxHeldRecords;
+    private final long maxHeldBytes;
+    private final WhenFull whenHeldFull;
+    private final long maxAwaitingRecords;
+    private final long maxAwaitingBytes;
     private final long blockTimeoutNanos;
     private final Map<String, PartitionOffsets> offsets = new HashMap<>();
     private final Map<String, Map<Long, Unacked>> unacked = new HashMap<>();
@@ -151,9 +156,11 @@ public final class StreamGate<R> {
             this.eventTime = null;
             this.reorder = null;
         }
-        this.maxInFlightRecords = b.maxInFlightRecords;
-        this.maxInFlightBytes = b.maxInFlightBytes;
-        this.whenFull = b.whenFull;
+        this.maxHeldRecords = b.maxHeldRecords;
+        this.maxHeldBytes = b.maxHeldBytes;
+        this.whenHeldFull = b.whenHeldFull;
+        this.maxAwaitingRecords = b.maxAwaitingRecords;
+        this.maxAwaitingBytes = b.maxAwaitingBytes;
         this.blockTimeoutNanos = b.blockTimeout.toNanos();
     }
 
@@ -171,10 +178,9 @@ public final class StreamGate<R> {
      * @return the decisions this call made, in the order the sink should apply them: the decisions of held records
      *     the watermark released, then this record's own decision (which may also be among the released ones,
      *     or be a {@link Decision.Action#HOLD}). Never empty.
-     * @throws OnefoldException (USAGE) when the offset is negative or too far ahead, or the in-flight bound
-     *     stayed full for the block timeout (the record was not taken and may be offered again, unless held
-     *     records were released early first, which stops the gate); any exception from the stored-state lookup
-     *     or the merge policy, after which the gate is stopped
+     * @throws OnefoldException (USAGE) when the offset is negative or too far ahead, or a bound stayed full for
+     *     the block timeout (the record was not taken and may be offered again); any exception from the
+     *     stored-state lookup or the merge policy, after which the gate is stopped
      */
     public List<Decision<R>> offer(String partition, long offset, R record) {
         Objects.requireNonNull(partition, "partition");
@@ -189,18 +195,19 @@ public final class StreamGate<R> {
                 return List.of(dropped(Decision.Reason.REDELIVERED, partition, offset, record, null, false, false, null));
             }
             po.checkDeliverable(offset);
+            awaitRoom();
             List<Decision<R>> out = new ArrayList<>(2);
             try {
-                makeRoom(out);
+                while (whenHeldFull == WhenFull.RELEASE_EARLY && heldFull()) {
+                    releaseEarly(out);
+                }
                 po.deliver(offset);
                 offered++;
                 accept(po, partition, offset, record, out);
             } catch (RuntimeException e) {
                 // decisions already made but not returned would be lost: only a restart from the committed
                 // offsets (which none of them passed) recovers them
-                if (!out.isEmpty() || !(e instanceof OnefoldException oe && oe.kind() == OnefoldException.Kind.USAGE)) {
-                    failure = e;
-                }
+                failure = e;
                 throw e;
             }
             return out;
@@ -253,29 +260,25 @@ public final class StreamGate<R> {
         return ((Number) v).longValue();
     }
 
-    private boolean full() {
-        long records = awaitingAck + (reorder == null ? 0 : reorder.heldRecords());
-        long bytes = awaitingBytes + (reorder == null ? 0 : reorder.heldBytes());
-        return records >= maxInFlightRecords || bytes >= maxInFlightBytes;
+    private boolean heldFull() {
+        return reorder != null && (reorder.heldRecords() >= maxHeldRecords || reorder.heldBytes() >= maxHeldBytes);
     }
 
-    private void makeRoom(List<Decision<R>> out) {
-        if (whenFull == WhenFull.RELEASE_EARLY) {
-            while (full() && reorder != null && !reorder.isEmpty()) {
-                releaseEarly(out);
-            }
-        }
+    private boolean mustWait() {
+        return awaitingAck >= maxAwaitingRecords || awaitingBytes >= maxAwaitingBytes
+                || (whenHeldFull == WhenFull.BLOCK && heldFull());
+    }
+
+    /** Waits, before anything of this offer is decided, until both bounds have room. */
+    private void awaitRoom() {
         long remaining = blockTimeoutNanos;
-        while (full()) {
-            if (awaitingAck == 0) {
-                // only held records fill the bound and no acknowledgement can free it
-                releaseEarly(out);
-                continue;
-            }
+        while (mustWait()) {
             if (remaining <= 0) {
-                throw OnefoldException.usage("in-flight bound (" + maxInFlightRecords + " records, " + maxInFlightBytes
-                        + " bytes) stayed full for " + Duration.ofNanos(blockTimeoutNanos) + " with " + awaitingAck
-                        + " emits awaiting acknowledgement; acknowledge from the sink's thread or raise the bound");
+                throw OnefoldException.usage("no room for another record for " + Duration.ofNanos(blockTimeoutNanos)
+                        + ": " + awaitingAck + " emits await acknowledgement (bound " + maxAwaitingRecords + " records, "
+                        + maxAwaitingBytes + " bytes), " + (reorder == null ? 0 : reorder.heldRecords())
+                        + " records held (bound " + maxHeldRecords + " records, " + maxHeldBytes
+                        + " bytes); acknowledge from the sink's thread, or raise the bounds");
             }
             try {
                 remaining = roomFreed.awaitNanos(remaining);
@@ -289,6 +292,7 @@ public final class StreamGate<R> {
     private void releaseDue(List<Decision<R>> out) {
         for (Arrival<R> a = reorder.releasable(); a != null; a = reorder.releasable()) {
             out.add(decide(a, false, false));
+            roomFreed.signalAll();
         }
     }
 
@@ -374,6 +378,7 @@ public final class StreamGate<R> {
                 while (reorder != null && !reorder.isEmpty()) {
                     out.add(decide(reorder.take(), false, false));
                 }
+                roomFreed.signalAll();
             } catch (RuntimeException e) {
                 failure = e;
                 throw e;
@@ -502,8 +507,9 @@ public final class StreamGate<R> {
     }
 
     /**
-     * Settings for a gate. Defaults: window of 100,000 keys kept for 1 hour since last access, no reordering,
-     * in-flight bound of 100,000 records and 64 MiB, {@link WhenFull#BLOCK} with a 60 s block timeout.
+     * Settings for a gate. Defaults: window of 100,000 keys kept for 1 hour since last access, no reordering;
+     * at most 100,000 records or 64 MiB held, {@link WhenFull#RELEASE_EARLY}; at most 100,000 records or 64 MiB
+     * awaiting acknowledgement; 60 s block timeout.
      */
     public static final class Builder<R> {
         private final DatasetSpec spec;
@@ -515,9 +521,11 @@ public final class StreamGate<R> {
         private LongSupplier windowClock = System::nanoTime;
         private String eventTimeField;
         private long lateness;
-        private long maxInFlightRecords = 100_000;
-        private long maxInFlightBytes = 64L << 20;
-        private WhenFull whenFull = WhenFull.BLOCK;
+        private long maxHeldRecords = 100_000;
+        private long maxHeldBytes = 64L << 20;
+        private WhenFull whenHeldFull = WhenFull.RELEASE_EARLY;
+        private long maxAwaitingRecords = 100_000;
+        private long maxAwaitingBytes = 64L << 20;
         private Duration blockTimeout = Duration.ofSeconds(60);
 
         private Builder(DatasetSpec spec, RecordAccess<R> access) {
@@ -576,23 +584,30 @@ public final class StreamGate<R> {
             return this;
         }
 
-        /** The bound on records in flight (held plus awaiting acknowledgement), by count and estimated bytes. */
-        public Builder<R> maxInFlight(long records, long bytes) {
-            if (records < 1) {
-                throw OnefoldException.usage("in-flight records must be at least 1, got " + records);
-            }
-            if (bytes < 1024) {
-                throw OnefoldException.usage("in-flight bytes must be at least 1024, got " + bytes);
-            }
-            this.maxInFlightRecords = records;
-            this.maxInFlightBytes = bytes;
+        /** The bound on records held for reordering, by count and estimated bytes, and what happens when full. */
+        public Builder<R> maxHeld(long records, long bytes, WhenFull whenFull) {
+            checkBound(records, bytes, "held");
+            this.maxHeldRecords = records;
+            this.maxHeldBytes = bytes;
+            this.whenHeldFull = Objects.requireNonNull(whenFull, "whenFull");
             return this;
         }
 
-        /** What an offer does when the in-flight bound is full. */
-        public Builder<R> whenFull(WhenFull policy) {
-            this.whenFull = Objects.requireNonNull(policy, "policy");
+        /** The bound on emitted records awaiting acknowledgement, by count and estimated bytes. */
+        public Builder<R> maxAwaitingAck(long records, long bytes) {
+            checkBound(records, bytes, "awaiting-acknowledgement");
+            this.maxAwaitingRecords = records;
+            this.maxAwaitingBytes = bytes;
             return this;
+        }
+
+        private static void checkBound(long records, long bytes, String what) {
+            if (records < 1) {
+                throw OnefoldException.usage(what + " records bound must be at least 1, got " + records);
+            }
+            if (bytes < 1024) {
+                throw OnefoldException.usage(what + " bytes bound must be at least 1024, got " + bytes);
+            }
         }
 
         /** How long an offer waits for room before it throws. */
