@@ -18,13 +18,21 @@ import java.util.List;
  * gate's stored-state lookup in exact mode. Rejected scans go to a second table with their reason.
  *
  * <p>Each method opens its own connection, so the consumer thread (lookups) and the writer thread (upserts)
- * never share one. Thread-safe; cost: one statement per row, one transaction per batch.
+ * never share one; one more connection stays open from construction to {@link #close()} so an embedded database
+ * is not closed and reopened between calls. Thread-safe; cost: one statement per row, one transaction per batch.
  */
-public final class ParcelTable implements StoredStateLookup {
+public final class ParcelTable implements StoredStateLookup, AutoCloseable {
     private final String url;
+    private final Connection keepOpen;
 
     public ParcelTable(String jdbcUrl) {
         this.url = jdbcUrl;
+        try {
+            this.keepOpen = DriverManager.getConnection(url);
+        } catch (SQLException e) {
+            throw new OnefoldException(OnefoldException.Kind.IO, "parcel table (" + url + "): cannot open: "
+                    + e.getMessage(), e);
+        }
         run(c -> {
             try (Statement s = c.createStatement()) {
                 s.execute("CREATE TABLE IF NOT EXISTS parcel (key_bytes VARBINARY(256) PRIMARY KEY, "
@@ -111,5 +119,15 @@ public final class ParcelTable implements StoredStateLookup {
             }
             return out;
         }, "query");
+    }
+
+    @Override
+    public void close() {
+        try {
+            keepOpen.close();
+        } catch (SQLException e) {
+            throw new OnefoldException(OnefoldException.Kind.IO, "parcel table (" + url + "): close failed: "
+                    + e.getMessage(), e);
+        }
     }
 }

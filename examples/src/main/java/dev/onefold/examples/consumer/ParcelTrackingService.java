@@ -24,7 +24,7 @@ import org.apache.kafka.common.serialization.StringDeserializer;
 
 /**
  * The consumer service of the example: reads parcel scans from every partition of a Kafka topic, passes each
- * through an exact-mode {@link StreamGate} (reordering by scan time within ten minutes), hands emits to a
+ * through an exact-mode {@link StreamGate} (reordering by scan time within an hour), hands emits to a
  * {@link TableWriter} that upserts them into the {@link ParcelTable} and acknowledges after each commit, and
  * commits to Kafka only the gate's safe offsets. Rejected scans are written to the table before their offset
  * can be committed.
@@ -65,7 +65,7 @@ public final class ParcelTrackingService implements AutoCloseable {
         this.gate = StreamGate.builder(ParcelScans.SPEC, ParcelScans.TEXT)
                 .exact(table)
                 .windowKeys(32) // fewer than the day's parcels, so the table is consulted
-                .reorder("scanned_at", Duration.ofMinutes(10).toMillis())
+                .reorder("scanned_at", Duration.ofHours(1).toMillis())
                 .maxAwaitingAck(512, 8L << 20)
                 .build();
         this.thread = new Thread(this::run, "parcel-tracking-consumer");
@@ -82,6 +82,7 @@ public final class ParcelTrackingService implements AutoCloseable {
         p.put(ConsumerConfig.GROUP_ID_CONFIG, group);
         p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, "false");
         p.put(ConsumerConfig.MAX_POLL_RECORDS_CONFIG, "50");
+        p.put(ConsumerConfig.FETCH_MAX_WAIT_MS_CONFIG, "50");
         TableWriter writer = new TableWriter(table, gate, d -> audit.done(d.partition(), d.offset()), "parcel-table-writer");
         try (KafkaConsumer<String, String> consumer = new KafkaConsumer<>(p, new StringDeserializer(), new StringDeserializer())) {
             Map<String, TopicPartition> partitions = assignAndSeek(consumer);

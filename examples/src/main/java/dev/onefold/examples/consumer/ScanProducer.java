@@ -37,6 +37,7 @@ public final class ScanProducer implements AutoCloseable {
         Properties p = new Properties();
         p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrap);
         p.put(ProducerConfig.ACKS_CONFIG, "all");
+        p.put(ProducerConfig.LINGER_MS_CONFIG, "0"); // one synchronous send at a time: do not wait to batch
         return new KafkaProducer<>(p, new StringSerializer(), new StringSerializer());
     }
 

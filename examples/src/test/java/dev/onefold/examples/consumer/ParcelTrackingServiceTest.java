@@ -67,8 +67,8 @@ class ParcelTrackingServiceTest {
         try (LoopbackKafkaBroker broker = new LoopbackKafkaBroker()) {
             brokerDir = broker.logDir();
             broker.createTopic(TOPIC, 3);
-            System.out.println("T broker " + System.nanoTime() / 1_000_000);
-            ParcelTable table = new ParcelTable("jdbc:h2:" + dir.resolve("tracking").toAbsolutePath());
+                        ParcelTable table = new ParcelTable("jdbc:h2:" + dir.resolve("tracking").toAbsolutePath());
+            long started = System.nanoTime();
             CommitAudit audit = new CommitAudit();
             List<String> day = ParcelScans.day(60, 20260101L);
             int half = day.size() / 2;
@@ -84,9 +84,7 @@ class ParcelTrackingServiceTest {
                 producer.send(day.subList(half, day.size()));
                 sent = producer.sent();
                 awaitOffered(first, sent.size() / 2);
-                System.out.println("T offered " + System.nanoTime() / 1_000_000);
                 first.crash();
-                System.out.println("T crashed " + System.nanoTime() / 1_000_000);
                 assertNull(first.failure());
             }
 
@@ -100,8 +98,7 @@ class ParcelTrackingServiceTest {
                 assertNull(second.failure());
                 Thread.sleep(50);
             }
-            System.out.println("T caught up " + System.nanoTime() / 1_000_000);
-            GateMetrics afterRestart = second.gateMetrics();
+                        GateMetrics afterRestart = second.gateMetrics();
             second.close();
 
             // the reference: the batch engine over every value produced, duplicates and the bad scan included
@@ -119,7 +116,9 @@ class ParcelTrackingServiceTest {
             assertTrue(afterRestart.duplicates() + afterRestart.superseded() > 0,
                     "replayed scans were recognised: " + afterRestart.toMap());
             System.out.println("parcel tracking: " + sent.size() + " values sent, " + expected.survivors().size()
-                    + " parcels tracked; after restart " + afterRestart.toMap());
+                    + " parcels tracked, " + (System.nanoTime() - started) / 1_000_000 + " ms; after restart "
+                    + afterRestart.toMap());
+            table.close();
         }
         assertFalse(Files.exists(brokerDir), "broker directory removed");
     }
