@@ -205,10 +205,7 @@ public final class StreamGate<R> {
                 offered++;
                 accept(po, partition, offset, record, out);
             } catch (RuntimeException e) {
-                // decisions already made but not returned would be lost: only a restart from the committed
-                // offsets (which none of them passed) recovers them
-                failure = e;
-                throw e;
+                throw stop(e);
             }
             return out;
         } finally {
@@ -380,8 +377,7 @@ public final class StreamGate<R> {
                 }
                 roomFreed.signalAll();
             } catch (RuntimeException e) {
-                failure = e;
-                throw e;
+                throw stop(e);
             }
             return out;
         } finally {
@@ -496,6 +492,15 @@ public final class StreamGate<R> {
         } finally {
             lock.unlock();
         }
+    }
+
+    /**
+     * Stops the gate after a failure inside a call: decisions that call made were never returned, so only a
+     * restart from the committed offsets (which none of them passed) recovers them.
+     */
+    private RuntimeException stop(RuntimeException e) {
+        failure = e;
+        return e;
     }
 
     private void requireRunning() {

@@ -28,7 +28,7 @@ import net.jqwik.api.constraints.Size;
  * Model-based properties of the gate: a consumer service with random deliveries, duplicates, seeks, crashes and
  * out-of-order acknowledgements, checked against the batch engine ("collect all records, apply the policy").
  */
-class StreamGateProperties {
+class StreamGatePropertiesTest {
 
     @Provide
     Arbitrary<Row> rows() {
@@ -150,7 +150,7 @@ class StreamGateProperties {
     @Property
     void reorder_releasedOrderIsNonDecreasingExceptLate(
             @ForAll @IntRange(max = 2) int policy,
-            @ForAll @Size(max = 40) List<@From("rows") Row> records,
+            @ForAll @Size(max = 30) List<@From("rows") Row> records,
             @ForAll @IntRange(min = 1, max = 3) int partitions,
             @ForAll @IntRange(max = 30) int lateness,
             @ForAll @IntRange(min = 1, max = 10) int maxHeld,
