@@ -105,7 +105,7 @@ public final class Decision<R> {
     /** Whether the record arrived behind the reorder frontier and was decided at once, out of order. */
     public boolean late() { return late; }
 
-    /** Whether the record was released before the watermark passed it, because the in-flight bound was full. */
+    /** Whether the record was released before the watermark passed it, because the bound on held records was full. */
     public boolean releasedEarly() { return releasedEarly; }
 
     /** For a rejected record, why; otherwise null. */

@@ -18,7 +18,7 @@ import java.util.Map;
  * @param redelivered     dropped: an offset delivered before
  * @param rejected        dropped: invalid records
  * @param late            decided on the late path
- * @param releasedEarly   released before the watermark because the in-flight bound was full
+ * @param releasedEarly   released before the watermark because the bound on held records was full
  * @param held            records held now
  * @param awaitingAck     emitted records not yet acknowledged now
  * @param inFlightBytes   estimated bytes of held and unacknowledged records now
@@ -46,7 +46,7 @@ public record GateMetrics(long offered, long emitted, long duplicates, long supe
         partitions = Map.copyOf(partitions);
     }
 
-    /** Records held now plus emitted records awaiting acknowledgement: what the in-flight bound limits. */
+    /** Records held now plus emitted records awaiting acknowledgement; at most the sum of the two bounds. */
     public long inFlight() {
         return held + awaitingAck;
     }
