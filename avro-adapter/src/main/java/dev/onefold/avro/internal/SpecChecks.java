@@ -74,9 +74,13 @@ public final class SpecChecks {
         }
     }
 
-    /** The Avro schema at a dotted path (through nullable unions of records), or null after adding a problem. */
+    /**
+     * The Avro schema at a dotted path (through nullable unions of records), or null after adding a problem.
+     * A path that passes through a nullable record comes back as a nullable union, since its value can be null.
+     */
     static Schema find(Schema root, String path, String role, List<String> problems) {
         Schema current = root;
+        boolean nullableOnTheWay = false;
         String[] steps = path.split("\\.", -1);
         for (int i = 0; i < steps.length; i++) {
             Schema record = nonNull(current);
@@ -93,9 +97,11 @@ public final class SpecChecks {
                         + steps[i] + "' (it has " + names + ")");
                 return null;
             }
+            nullableOnTheWay |= isNullableUnion(current);
             current = f.schema();
         }
-        return current;
+        return nullableOnTheWay && !isNullableUnion(current)
+                ? Schema.createUnion(Schema.create(Schema.Type.NULL), nonNull(current)) : current;
     }
 
     static boolean isNullableUnion(Schema s) {
