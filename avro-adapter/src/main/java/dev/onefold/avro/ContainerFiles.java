@@ -3,6 +3,7 @@ package dev.onefold.avro;
 import dev.onefold.OnefoldException;
 import dev.onefold.avro.internal.AvroErrors;
 import dev.onefold.avro.internal.Compatibility;
+import dev.onefold.avro.internal.ContainerCheck;
 import java.io.IOException;
 import java.nio.file.Path;
 import java.util.Iterator;
@@ -23,7 +24,8 @@ import org.apache.avro.generic.GenericRecord;
  * Import from and export to Avro object container files, the open file format any Avro tool reads: a header
  * with the writer schema and codec name, then blocks of records compressed with that codec.
  *
- * <p>Reading resolves the file's schema to a reader schema by Avro's rules (checked first with Avro's
+ * <p>Reading first checks the file's block structure (a truncated or oversized block is a CORRUPT error, where
+ * Avro's own reader would stop silently), then resolves the file's schema to a reader schema by Avro's rules (checked first with Avro's
  * compatibility checker, so an incompatible file is refused up front with the reasons); every error names the
  * file and, while iterating, the 0-based index of the record at fault. Writing checks each record against the
  * dataset's schema first, so an export never holds a record that does not conform.
@@ -32,6 +34,9 @@ import org.apache.avro.generic.GenericRecord;
  * linear in the file size plus the codec's work.
  */
 public final class ContainerFiles {
+    /** Largest block a reader accepts (256 MiB); Avro's writers default to blocks of about 64 KiB. */
+    public static final long MAX_BLOCK_BYTES = 256L << 20;
+
     private ContainerFiles() {}
 
     /** Block compression of a container file. */
@@ -139,6 +144,8 @@ public final class ContainerFiles {
 
         private Reader(Path file, Schema readerSchema) {
             this.file = file;
+            // Avro's reader ends silently at a truncated block; the structure is checked first so nothing is lost
+            ContainerCheck.check(file, MAX_BLOCK_BYTES);
             GenericDatumReader<GenericRecord> datum = new GenericDatumReader<>();
             try {
                 in = new DataFileReader<>(file.toFile(), datum);
