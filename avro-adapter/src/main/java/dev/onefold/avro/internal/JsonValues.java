@@ -228,7 +228,7 @@ public final class JsonValues {
                     + (micros ? "microseconds" : "milliseconds"));
         }
         try {
-            return Math.addExact(Math.multiplyExact(t.getEpochSecond(), 1_000_000_000L / unitNanos), t.getNano() / unitNanos);
+            return EpochUnits.of(t, 1_000_000_000L / unitNanos);
         } catch (ArithmeticException e) {
             throw OnefoldException.record(AvroErrors.at(path) + "'" + text + "' is out of range");
         }

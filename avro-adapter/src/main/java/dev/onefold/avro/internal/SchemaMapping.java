@@ -458,8 +458,7 @@ public final class SchemaMapping {
             }
             if (v instanceof Instant t) {
                 try {
-                    return micros ? Math.addExact(Math.multiplyExact(t.getEpochSecond(), 1_000_000L), t.getNano() / 1000)
-                            : t.toEpochMilli();
+                    return EpochUnits.of(t, micros ? 1_000_000L : 1000L);
                 } catch (ArithmeticException e) {
                     throw OnefoldException.record(AvroErrors.at(path) + "instant " + t + " is out of the range of "
                             + avro.getLogicalType().getName());
