@@ -39,7 +39,7 @@ class AvroRoundTripProperties {
         return new Sample(schema, AvroRecordAccess.of(schema), records);
     }
 
-    @Property(tries = 300)
+    @Property(tries = 200)
     void codec_roundTripsGeneratedRecords(@ForAll long seed) {
         Sample s = sample(seed, 5);
         AvroPayloadCodec codec = AvroPayloadCodec.of(s.schema());
@@ -79,7 +79,7 @@ class AvroRoundTripProperties {
         }
     }
 
-    @Property(tries = 200)
+    @Property(tries = 100)
     void engine_distinctKeysComeBackUnchangedInKeyOrder(@ForAll long seed) {
         Sample s = sample(seed, 12);
         List<GenericRecord> shuffled = new ArrayList<>(s.records());
