@@ -13,8 +13,11 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Random;
+import net.jqwik.api.Arbitraries;
+import net.jqwik.api.Arbitrary;
 import net.jqwik.api.ForAll;
 import net.jqwik.api.Property;
+import net.jqwik.api.Provide;
 import org.apache.avro.Schema;
 import org.apache.avro.generic.GenericData;
 import org.apache.avro.generic.GenericRecord;
@@ -93,30 +96,16 @@ class AvroConvergenceProperties {
         return engine(spec).dedupe(batch).survivors().stream().map(ACCESS::toRow).toList();
     }
 
-    private static void orderAndRepetitionIndependent(String spec, long seed) {
+    @Provide
+    Arbitrary<String> policies() {
+        return Arbitraries.of(LAST_WRITER, KEEP_ALL, PICK, FIELD_WISE);
+    }
+
+    @Property(tries = 600)
+    void everyPolicy_dependsOnlyOnTheSetDelivered(@ForAll("policies") String spec, @ForAll long seed) {
         Random random = new Random(seed);
         List<GenericRecord> records = records(random, 1 + random.nextInt(25));
         assertEquals(dedupe(spec, records), dedupe(spec, deliveries(random, records)));
-    }
-
-    @Property(tries = 200)
-    void lastWriter_dependsOnlyOnTheSetDelivered(@ForAll long seed) {
-        orderAndRepetitionIndependent(LAST_WRITER, seed);
-    }
-
-    @Property(tries = 200)
-    void vectorClockKeepAll_dependsOnlyOnTheSetDelivered(@ForAll long seed) {
-        orderAndRepetitionIndependent(KEEP_ALL, seed);
-    }
-
-    @Property(tries = 200)
-    void vectorClockPick_dependsOnlyOnTheSetDelivered(@ForAll long seed) {
-        orderAndRepetitionIndependent(PICK, seed);
-    }
-
-    @Property(tries = 200)
-    void fieldWise_dependsOnlyOnTheSetDelivered(@ForAll long seed) {
-        orderAndRepetitionIndependent(FIELD_WISE, seed);
     }
 
     /** Applying batches one after another (each on the survivors so far) equals applying them together. */
