@@ -53,8 +53,8 @@ public class BatchDedupeBenchmark {
         return Workload.of(Integer.parseInt(p.getParam("records")));
     }
 
-    static String describe(BenchmarkParams p) {
-        return p.getParam("policy") + " on " + p.getParam("records") + " records";
+    static String describe(MergeCase policy, Workload w) {
+        return policy.paramName() + " on " + w.records() + " records";
     }
 
     /** onefold's input: the batch as rows, and an engine whose budget keeps it in memory. */
@@ -68,9 +68,12 @@ public class BatchDedupeBenchmark {
 
         @Setup(Level.Trial)
         public void setUp(BenchmarkParams p) {
-            policy = policy(p);
-            what = describe(p);
-            Workload w = workload(p);
+            prepare(policy(p), workload(p));
+        }
+
+        void prepare(MergeCase policy, Workload w) {
+            this.policy = policy;
+            what = describe(policy, w);
             expected = handWrittenChecksum(policy, w.readings());
             rows = w.rows();
             engine = inMemoryEngine(policy);
@@ -87,9 +90,12 @@ public class BatchDedupeBenchmark {
 
         @Setup(Level.Trial)
         public void setUp(BenchmarkParams p) {
-            policy = policy(p);
-            what = describe(p);
-            Workload w = workload(p);
+            prepare(policy(p), workload(p));
+        }
+
+        void prepare(MergeCase policy, Workload w) {
+            this.policy = policy;
+            what = describe(policy, w);
             List<Row> rows = w.rows();
             OutputChecksum reference = new OutputChecksum();
             BatchReport report = inMemoryEngine(policy).dedupe(rows.iterator(), "reference", reference::add, BatchDedupeBenchmark::rejected);
@@ -109,9 +115,13 @@ public class BatchDedupeBenchmark {
 
         @Setup(Level.Trial)
         public void setUp(BenchmarkParams p) throws SQLException {
-            policy = policy(p);
-            what = describe(p);
-            List<Reading> readings = workload(p).readings();
+            prepare(policy(p), workload(p));
+        }
+
+        void prepare(MergeCase policy, Workload w) throws SQLException {
+            this.policy = policy;
+            what = describe(policy, w);
+            List<Reading> readings = w.readings();
             expected = handWrittenChecksum(policy, readings);
             duckdb = new DuckDbDedupe();
             duckdb.load(readings);
@@ -132,8 +142,12 @@ public class BatchDedupeBenchmark {
 
         @Setup(Level.Trial)
         public void setUp(BenchmarkParams p) throws SQLException {
-            what = describe(p);
-            readings = workload(p).readings();
+            prepare(policy(p), workload(p));
+        }
+
+        void prepare(MergeCase policy, Workload w) throws SQLException {
+            what = describe(policy, w);
+            readings = w.readings();
             duckdb = new DuckDbDedupe();
         }
 

@@ -91,7 +91,8 @@ public final class Workload {
         return r < 4 ? Relation.NEWER : r < 8 ? Relation.OLDER : Relation.CONCURRENT;
     }
 
-    private Reading version(int k, boolean extra) {
+    /** The first version of key {@code k}, or its extra version ({@link #hasExtra} must hold). */
+    Reading version(int k, boolean extra) {
         long seq = 10 + Math.floorMod(mix(k, 1), 1000L);
         long at = START_MILLIS + Math.floorMod(mix(k, 2), SPAN_MILLIS);
         long w1 = 2 + Math.floorMod(mix(k, 3), 1000L);
