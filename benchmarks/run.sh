@@ -64,10 +64,15 @@ iterations() { # size -> "warmups measurements"
   if [ "$1" -le 200000 ]; then echo "5 5"; elif [ "$1" -le 2000000 ]; then echo "1 3"; else echo "1 2"; fi
 }
 
+# JMH takes a machine-wide lock so that two measuring runs never overlap; a smoke run measures nothing, so it
+# may run beside another JMH run
+lock=()
+if [ "$profile" = smoke ]; then lock=(-Djmh.ignoreLock=true); fi
+
 jmh() { # name, then JMH arguments
   local name="$1"; shift
   echo "== $name"
-  java -jar "$jar" "$@" -f 1 -gc true -rf json -rff "$raw/$name.json" "${jmh_extra[@]}"
+  java "${lock[@]}" -jar "$jar" "$@" -f 1 -gc true -rf json -rff "$raw/$name.json" "${jmh_extra[@]}"
 }
 
 if [[ ",$questions," == *",q1,"* ]]; then
