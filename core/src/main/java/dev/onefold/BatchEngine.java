@@ -5,6 +5,7 @@ import dev.onefold.internal.engine.CloseableIterator;
 import dev.onefold.internal.engine.Consolidator;
 import dev.onefold.internal.engine.HashConsolidator;
 import dev.onefold.internal.engine.KeyedState;
+import dev.onefold.internal.engine.OrderedRow;
 import dev.onefold.internal.merge.MergeCounts;
 import dev.onefold.internal.engine.Publisher;
 import dev.onefold.record.Row;
@@ -111,37 +112,36 @@ public final class BatchEngine<R> {
                     spilling.add(row, source, position, record, rejects);
                 }
             }
-            long accepted;
-            long rejected;
-            MergeCounts counts;
-            int runs = 0;
             if (spilling == null) {
-                fast.fold(rejects).forEach(publisher::add);
-                accepted = fast.accepted();
-                rejected = fast.rejected();
-                counts = fast.counts();
-            } else {
-                try (Consolidator c = spilling; CloseableIterator<KeyedState> folded = c.folded()) {
-                    publisher.addAll(folded);
-                    accepted = c.accepted();
-                    rejected = c.rejected();
-                    counts = c.counts();
-                    runs = c.spilledRuns();
+                HashConsolidator.Ordered ordered = fast.foldAndOrder(rejects);
+                for (OrderedRow r : ordered.rows()) {
+                    survivors.accept(access.fromRow(r.row()));
                 }
+                return report(in, fast.accepted(), fast.rejected(), fast.counts(), ordered.keys(),
+                        ordered.keysWithSiblings(), ordered.deletedKeys(), ordered.rows().length, 0);
+            }
+            try (Consolidator c = spilling; CloseableIterator<KeyedState> folded = c.folded()) {
+                publisher.addAll(folded);
             }
             try (CloseableIterator<Row> out = publisher.sorted()) {
                 while (out.hasNext()) {
                     survivors.accept(access.fromRow(out.next()));
                 }
             }
-            return new BatchReport(in, accepted, rejected, counts.duplicates, counts.superseded, counts.conflicts,
-                    publisher.keys(), publisher.keysWithSiblings(), publisher.deletedKeys(), publisher.out(),
-                    runs + publisher.spilledRuns(), !dataset.policy().isJoin());
+            return report(in, spilling.accepted(), spilling.rejected(), spilling.counts(), publisher.keys(),
+                    publisher.keysWithSiblings(), publisher.deletedKeys(), publisher.out(),
+                    spilling.spilledRuns() + publisher.spilledRuns());
         } finally {
             if (spilling != null) {
                 spilling.close();
             }
         }
+    }
+
+    private BatchReport report(long in, long accepted, long rejected, MergeCounts counts, long keys, long siblings,
+            long deleted, long out, int runs) {
+        return new BatchReport(in, accepted, rejected, counts.duplicates, counts.superseded, counts.conflicts, keys,
+                siblings, deleted, out, runs, !dataset.policy().isJoin());
     }
 
     /** Settings for an engine; {@link #build()} checks the spec against the record access's schema. */

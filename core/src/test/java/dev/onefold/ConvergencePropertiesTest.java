@@ -86,6 +86,10 @@ class ConvergencePropertiesTest {
         Object ab = p.merge(a, b, counts);
         assertBytes(p, ab, p.merge(ab, ab, counts), "idempotent");
         assertBytes(p, ab, p.merge(ab, a, counts), "absorbs an already merged version (a <= a join b)");
+        // a state lifted from one record shows the same rows as the fully merged form of itself
+        assertEquals(p.visible(a), p.visible(p.merge(a, a, counts)), "visible rows of a single-record state");
+        assertEquals(p.anchor(a), p.anchor(p.read(new dev.onefold.internal.bytes.ByteReader(p.toBytes(a), "state"))),
+                "anchor survives encoding");
     }
 
     private static void assertBytes(Policy<Object> p, Object x, Object y, String law) {

@@ -225,10 +225,13 @@ public final class BoundDataset {
      * @throws OnefoldException (INVALID_RECORD) when a key field is null and null keys are not allowed
      */
     public byte[] key(Row row) {
-        ByteWriter w = new ByteWriter(32);
+        ByteWriter w = SCRATCH.get().reset();
         writeKey(w, row);
         return w.toByteArray();
     }
+
+    /** One reusable buffer per thread: key and order bytes are built there and copied out once. */
+    private static final ThreadLocal<ByteWriter> SCRATCH = ThreadLocal.withInitial(() -> new ByteWriter(256));
 
     private void writeKey(ByteWriter w, Row row) {
         for (FieldPath p : key) {
@@ -242,11 +245,16 @@ public final class BoundDataset {
 
     /** The order bytes of a row: order fields (flipped when descending), then the key. */
     public byte[] order(Row row) {
-        ByteWriter w = new ByteWriter(48);
+        return order(row, key(row));
+    }
+
+    /** The order bytes of a row whose key bytes are already known. */
+    public byte[] order(Row row, byte[] key) {
+        ByteWriter w = SCRATCH.get().reset();
         for (int i = 0; i < order.length; i++) {
             OrderedBytes.write(w, order[i].type().nullable(), order[i].read(row), descending[i]);
         }
-        writeKey(w, row);
+        w.write(key);
         return w.toByteArray();
     }
 

@@ -8,7 +8,6 @@ import dev.onefold.internal.merge.Policy;
 import dev.onefold.record.Row;
 import java.util.ArrayList;
 import java.util.Arrays;
-import java.util.Comparator;
 import java.util.List;
 import java.util.function.Consumer;
 import java.util.stream.IntStream;
@@ -18,7 +17,8 @@ import java.util.stream.IntStream;
  * then keys and states are extracted in parallel, records are grouped by key in an open-addressing hash table,
  * and each key with several records is folded in the same canonical order as {@link Consolidator} (ascending
  * state bytes, exact duplicates skipped), so the folded states and the counts are identical to the sorting
- * path. Keys delivered once, the common case, are never encoded beyond their key bytes.
+ * path. Keys delivered once, the common case, are never encoded beyond their key and order bytes; the visible
+ * rows are then ordered exactly as {@link Publisher} orders them.
  *
  * <h2>Invariants</h2>
  * One folded state per key, equal byte for byte to what {@link Consolidator} produces for the same records;
@@ -121,13 +121,20 @@ public final class HashConsolidator {
         return counts;
     }
 
-    /** Extracts, groups and folds; reports rejections in input order; returns one state per key. */
-    public List<KeyedState> fold(Consumer<Rejection> rejects) {
+    /** What the in-memory path produced: visible rows in order, and the key counts. */
+    public record Ordered(OrderedRow[] rows, long keys, long keysWithSiblings, long deletedKeys) {}
+
+    /**
+     * Extracts, groups and folds, then resolves each key to its visible rows and sorts them by the order;
+     * reports rejections in input order. The result equals what {@link Publisher} makes of the same states.
+     */
+    public Ordered foldAndOrder(Consumer<Rejection> rejects) {
         byte[][] keys = new byte[n][];
         Object[] states = new Object[n];
         String[] reasons = new String[n];
+        boolean useCores = parallel && n >= PARALLEL_THRESHOLD;
         IntStream range = IntStream.range(0, n);
-        (parallel && n >= PARALLEL_THRESHOLD ? range.parallel() : range).forEach(i -> {
+        (useCores ? range.parallel() : range).forEach(i -> {
             try {
                 keys[i] = dataset.key(rows[i]);
                 states[i] = policy.lift(rows[i]);
@@ -143,23 +150,54 @@ public final class HashConsolidator {
         int[] next = new int[n];
         int[] firsts = group(keys, reasons, next);
         int groups = firsts.length;
-        KeyedState[] out = new KeyedState[groups];
-        int chunks = parallel && n >= PARALLEL_THRESHOLD ? Runtime.getRuntime().availableProcessors() * 4 : 1;
-        MergeCounts[] perChunk = new MergeCounts[chunks];
+        int chunks = useCores ? Runtime.getRuntime().availableProcessors() * 4 : 1;
+        MergeCounts[] perChunkCounts = new MergeCounts[chunks];
+        long[][] perChunkKeys = new long[chunks][];
+        List<List<OrderedRow>> perChunkRows = new ArrayList<>(java.util.Collections.nCopies(chunks, null));
         IntStream chunkRange = IntStream.range(0, chunks);
         (chunks > 1 ? chunkRange.parallel() : chunkRange).forEach(c -> {
             MergeCounts local = new MergeCounts();
+            long siblings = 0;
+            long deleted = 0;
             int from = (int) ((long) groups * c / chunks);
             int to = (int) ((long) groups * (c + 1) / chunks);
+            List<OrderedRow> out = new ArrayList<>(to - from);
             for (int k = from; k < to; k++) {
-                out[k] = foldGroup(firsts[k], next, keys, states, local);
+                int first = firsts[k];
+                Object state = foldGroup(first, next, states, local);
+                if (policy.hasSiblings(state)) {
+                    siblings++;
+                }
+                List<Row> visible = policy.visible(state);
+                if (visible.isEmpty()) {
+                    deleted++;
+                }
+                for (Row r : visible) {
+                    out.add(new OrderedRow(dataset.order(r, keys[first]), r, null));
+                }
             }
-            perChunk[c] = local;
+            perChunkCounts[c] = local;
+            perChunkKeys[c] = new long[] {siblings, deleted};
+            perChunkRows.set(c, out);
         });
-        for (MergeCounts m : perChunk) {
-            counts.add(m);
+        long siblings = 0;
+        long deleted = 0;
+        int total = 0;
+        for (int c = 0; c < chunks; c++) {
+            counts.add(perChunkCounts[c]);
+            siblings += perChunkKeys[c][0];
+            deleted += perChunkKeys[c][1];
+            total += perChunkRows.get(c).size();
         }
-        return Arrays.asList(out);
+        OrderedRow[] all = new OrderedRow[total];
+        int at = 0;
+        for (List<OrderedRow> part : perChunkRows) {
+            for (OrderedRow r : part) {
+                all[at++] = r;
+            }
+        }
+        OrderedRow.sort(all);
+        return new Ordered(all, groups, siblings, deleted);
     }
 
     private void reportRejections(String[] reasons, Consumer<Rejection> rejects) {
@@ -227,26 +265,33 @@ public final class HashConsolidator {
         return firsts;
     }
 
-    private KeyedState foldGroup(int first, int[] next, byte[][] keys, Object[] states, MergeCounts local) {
+    /** Folds one key's states in ascending state-byte order, exactly as {@link Consolidator} does. */
+    private Object foldGroup(int first, int[] next, Object[] states, MergeCounts local) {
         if (next[first] < 0) {
-            return new KeyedState(keys[first], null, states[first], policy);
+            return states[first];
         }
-        List<KeyedState> members = new ArrayList<>();
+        List<byte[]> bytes = new ArrayList<>();
+        List<Object> members = new ArrayList<>();
         for (int i = first; i >= 0; i = next[i]) {
-            members.add(new KeyedState(keys[i], policy.toBytes(states[i]), states[i]));
+            bytes.add(policy.toBytes(states[i]));
+            members.add(states[i]);
         }
-        members.sort(Comparator.comparing(KeyedState::stateBytes, Arrays::compareUnsigned));
-        Object acc = members.get(0).state(policy);
-        byte[] last = members.get(0).stateBytes();
-        for (int m = 1; m < members.size(); m++) {
-            KeyedState ks = members.get(m);
-            if (Arrays.equals(ks.stateBytes(), last)) {
+        Integer[] byBytes = new Integer[members.size()];
+        for (int m = 0; m < byBytes.length; m++) {
+            byBytes[m] = m;
+        }
+        Arrays.sort(byBytes, (x, y) -> Arrays.compareUnsigned(bytes.get(x), bytes.get(y)));
+        Object acc = members.get(byBytes[0]);
+        byte[] last = bytes.get(byBytes[0]);
+        for (int m = 1; m < byBytes.length; m++) {
+            byte[] b = bytes.get(byBytes[m]);
+            if (Arrays.equals(b, last)) {
                 local.duplicates++;
                 continue;
             }
-            last = ks.stateBytes();
-            acc = policy.merge(acc, ks.state(policy), local);
+            last = b;
+            acc = policy.merge(acc, members.get(byBytes[m]), local);
         }
-        return new KeyedState(keys[first], null, acc, policy);
+        return acc;
     }
 }

@@ -7,8 +7,6 @@ import dev.onefold.internal.merge.Policy;
 import dev.onefold.record.Row;
 import dev.onefold.record.RowSchema;
 import java.nio.file.Path;
-import java.util.Arrays;
-import java.util.Comparator;
 import java.util.Iterator;
 import java.util.List;
 import java.util.NoSuchElementException;
@@ -19,50 +17,6 @@ import java.util.NoSuchElementException;
  * budget. Counts keys, keys with siblings and deleted keys. Not thread-safe; one instance per batch.
  */
 public final class Publisher implements AutoCloseable {
-
-    /** A visible row with its order bytes. */
-    public static final class OrderedRow {
-        final byte[] order;
-        /** The first eight order bytes as an unsigned number, so most comparisons never touch the array. */
-        final long prefix;
-        final Row row;
-        private byte[] content;
-
-        OrderedRow(byte[] order, Row row, byte[] content) {
-            this.order = order;
-            this.prefix = prefix(order);
-            this.row = row;
-            this.content = content;
-        }
-
-        private static long prefix(byte[] order) {
-            long p = 0;
-            for (int i = 0; i < 8; i++) {
-                p = (p << 8) | (i < order.length ? order[i] & 0xFF : 0);
-            }
-            return p;
-        }
-
-        byte[] content() {
-            if (content == null) {
-                content = RowCodec.encode(row);
-            }
-            return content;
-        }
-
-        public Row row() {
-            return row;
-        }
-    }
-
-    private static final Comparator<OrderedRow> ORDER = (a, b) -> {
-        int c = Long.compareUnsigned(a.prefix, b.prefix);
-        if (c != 0) {
-            return c;
-        }
-        c = Arrays.compareUnsigned(a.order, b.order);
-        return c != 0 ? c : Arrays.compareUnsigned(a.content(), b.content());
-    };
 
     private final BoundDataset dataset;
     private final Policy<Object> policy;
@@ -75,14 +29,14 @@ public final class Publisher implements AutoCloseable {
     public Publisher(BoundDataset dataset, long budgetBytes, Path tempDir, boolean parallel) {
         this.dataset = dataset;
         this.policy = dataset.policy();
-        this.sorter = new ExternalSorter<>(ORDER, codec(dataset.schema()), budgetBytes, tempDir, parallel);
+        this.sorter = new ExternalSorter<>(OrderedRow.ORDER, codec(dataset.schema()), budgetBytes, tempDir, parallel);
     }
 
     private static ExternalSorter.Codec<OrderedRow> codec(RowSchema schema) {
         return new ExternalSorter.Codec<>() {
             @Override
             public void write(ByteWriter o, OrderedRow item) {
-                o.writeBlob(item.order);
+                o.writeBlob(item.order());
                 o.writeBlob(item.content());
             }
 
@@ -95,7 +49,7 @@ public final class Publisher implements AutoCloseable {
 
             @Override
             public long estimatedBytes(OrderedRow item) {
-                return 200L + item.order.length * 2L + RowSizes.estimate(item.row);
+                return item.estimatedBytes();
             }
         };
     }
@@ -111,7 +65,7 @@ public final class Publisher implements AutoCloseable {
             deletedKeys++;
         }
         for (Row r : rows) {
-            sorter.add(new OrderedRow(dataset.order(r), r, null));
+            sorter.add(new OrderedRow(dataset.order(r, ks.key()), r, null));
             out++;
         }
     }
@@ -136,7 +90,7 @@ public final class Publisher implements AutoCloseable {
                 if (!it.hasNext()) {
                     throw new NoSuchElementException();
                 }
-                return it.next().row;
+                return it.next().row();
             }
 
             @Override

@@ -46,19 +46,69 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
      */
     public record FieldState(Stamp single, TreeMap<Object, Stamp> entries) {}
 
-    /** The merge state of one key. */
-    public record State(long latestVersion, long latestHash, FieldState[] fields) {}
+    /**
+     * The merge state of one key. A state lifted from a single record keeps just that record; its per-field
+     * stamps and content hash are built the first time a merge or an encoding needs them, so keys delivered
+     * once cost no more than their record.
+     */
+    public static final class State {
+        private final long latestVersion;
+        private final Row single;
+        private volatile FieldState[] fields;
+        private volatile long latestHash;
+
+        State(long latestVersion, long latestHash, FieldState[] fields) {
+            this.latestVersion = latestVersion;
+            this.latestHash = latestHash;
+            this.fields = fields;
+            this.single = null;
+        }
+
+        State(long version, Row single) {
+            this.latestVersion = version;
+            this.single = single;
+        }
+
+        public long latestVersion() {
+            return latestVersion;
+        }
+    }
+
+    private FieldState[] fields(State s) {
+        FieldState[] f = s.fields;
+        if (f == null) {
+            FieldState[] lifted = new FieldState[rules.length];
+            for (int i = 0; i < rules.length; i++) {
+                lifted[i] = liftField(i, s.latestVersion, s.single.get(i));
+            }
+            s.latestHash = XxHash64.hash(RowCodec.encode(s.single));
+            s.fields = lifted;
+            f = lifted;
+        }
+        return f;
+    }
+
+    private long latestHash(State s) {
+        fields(s);
+        return s.latestHash;
+    }
 
     private final RowSchema schema;
     private final FieldRule[] rules;
     private final FieldPath version;
     private final int tombstoneIndex;
+    private final boolean plainSingle;
 
     public FieldWisePolicy(RowSchema schema, FieldRule[] rules, FieldPath version, int tombstoneIndex) {
         this.schema = schema;
         this.rules = rules.clone();
         this.version = version;
         this.tombstoneIndex = tombstoneIndex;
+        boolean plain = true;
+        for (FieldRule r : rules) {
+            plain &= r != FieldRule.UNION && r != FieldRule.SUM;
+        }
+        this.plainSingle = plain;
     }
 
     private static final java.util.Comparator<Object> ENTRY_KEYS = (a, b) -> {
@@ -77,12 +127,7 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
         if (v == null) {
             throw OnefoldException.record("version field '" + version.path() + "' is null");
         }
-        long ver = ((Number) v).longValue();
-        FieldState[] fs = new FieldState[rules.length];
-        for (int i = 0; i < rules.length; i++) {
-            fs[i] = liftField(i, ver, record.get(i));
-        }
-        return new State(ver, XxHash64.hash(RowCodec.encode(record)), fs);
+        return new State(((Number) v).longValue(), record);
     }
 
     private FieldState liftField(int i, long ver, Object value) {
@@ -125,7 +170,7 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
     @Override
     public State merge(State a, State b, MergeCounts counts) {
         if (a.latestVersion == b.latestVersion) {
-            if (a.latestHash == b.latestHash) {
+            if (latestHash(a) == latestHash(b)) {
                 counts.duplicates++;
             } else {
                 counts.conflicts++;
@@ -135,17 +180,17 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
         }
         FieldState[] out = new FieldState[rules.length];
         for (int i = 0; i < rules.length; i++) {
-            out[i] = mergeField(rules[i], a.fields[i], b.fields[i]);
+            out[i] = mergeField(rules[i], fields(a)[i], fields(b)[i]);
         }
         long lv;
         long lh;
         if (a.latestVersion != b.latestVersion) {
             boolean aWins = a.latestVersion > b.latestVersion;
             lv = aWins ? a.latestVersion : b.latestVersion;
-            lh = aWins ? a.latestHash : b.latestHash;
+            lh = aWins ? latestHash(a) : latestHash(b);
         } else {
             lv = a.latestVersion;
-            lh = Long.compareUnsigned(a.latestHash, b.latestHash) >= 0 ? a.latestHash : b.latestHash;
+            lh = Long.compareUnsigned(latestHash(a), latestHash(b)) >= 0 ? latestHash(a) : latestHash(b);
         }
         return new State(lv, lh, out);
     }
@@ -205,16 +250,23 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
         if (tombstoneIndex < 0) {
             return false;
         }
+        if (state.fields == null) {
+            return Boolean.TRUE.equals(state.single.get(tombstoneIndex));
+        }
         Stamp s = state.fields[tombstoneIndex].single;
         return s != null && Boolean.TRUE.equals(s.value);
     }
 
     @Override
     public Row anchor(State state) {
+        if (state.fields == null && isPlainSingle()) {
+            return state.single;
+        }
+        FieldState[] fs = fields(state);
         Object[] values = new Object[rules.length];
         for (int i = 0; i < rules.length; i++) {
             FieldType type = schema.field(i).type();
-            FieldState f = state.fields[i];
+            FieldState f = fs[i];
             switch (rules[i]) {
                 case UNION -> values[i] = unionValue(type, f.entries);
                 case SUM -> values[i] = sumValue(type, f.entries);
@@ -222,6 +274,14 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
             }
         }
         return Row.of(schema, values);
+    }
+
+    /**
+     * Whether a single record is its own merged view: true when no field uses union or sum, whose outputs
+     * normalise a lone value (union sorts and de-duplicates elements, sum turns null into zero).
+     */
+    private boolean isPlainSingle() {
+        return plainSingle;
     }
 
     private static Object unionValue(FieldType type, TreeMap<Object, Stamp> entries) {
@@ -276,11 +336,12 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
 
     @Override
     public void write(ByteWriter out, State state) {
+        FieldState[] fs = fields(state);
         out.writeZigZag(state.latestVersion);
         out.writeLong(state.latestHash);
         for (int i = 0; i < rules.length; i++) {
             FieldType type = schema.field(i).type();
-            FieldState f = state.fields[i];
+            FieldState f = fs[i];
             switch (rules[i]) {
                 case UNION, SUM -> {
                     out.writeVarInt(f.entries.size());

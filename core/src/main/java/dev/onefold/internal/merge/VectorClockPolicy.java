@@ -30,7 +30,47 @@ import java.util.TreeMap;
 public final class VectorClockPolicy implements Policy<VectorClockPolicy.State> {
 
     /** One maximal version. */
-    public record Sibling(TreeMap<String, Long> clock, byte[] clockBytes, byte[] content, Row row, boolean deleted) {
+    public static final class Sibling {
+        private final TreeMap<String, Long> clock;
+        private final Row row;
+        private final boolean deleted;
+        private byte[] clockBytes;
+        private byte[] content;
+
+        Sibling(TreeMap<String, Long> clock, Row row, boolean deleted) {
+            this.clock = clock;
+            this.row = row;
+            this.deleted = deleted;
+        }
+
+        public TreeMap<String, Long> clock() {
+            return clock;
+        }
+
+        public Row row() {
+            return row;
+        }
+
+        public boolean deleted() {
+            return deleted;
+        }
+
+        /** Canonical clock bytes, computed when a comparison first needs them. */
+        byte[] clockBytes() {
+            if (clockBytes == null) {
+                clockBytes = VectorClockPolicy.clockBytes(clock);
+            }
+            return clockBytes;
+        }
+
+        /** Canonical row bytes, computed when a comparison first needs them. */
+        byte[] content() {
+            if (content == null) {
+                content = RowCodec.encode(row);
+            }
+            return content;
+        }
+
         long counterSum() {
             long s = 0;
             for (long v : clock.values()) {
@@ -44,8 +84,8 @@ public final class VectorClockPolicy implements Policy<VectorClockPolicy.State> 
     public record State(List<Sibling> siblings) {}
 
     private static final Comparator<Sibling> CANONICAL = (x, y) -> {
-        int c = Arrays.compareUnsigned(x.clockBytes, y.clockBytes);
-        return c != 0 ? c : Arrays.compareUnsigned(x.content, y.content);
+        int c = Arrays.compareUnsigned(x.clockBytes(), y.clockBytes());
+        return c != 0 ? c : Arrays.compareUnsigned(x.content(), y.content());
     };
 
     private final FieldPath clock;
@@ -86,7 +126,7 @@ public final class VectorClockPolicy implements Policy<VectorClockPolicy.State> 
                 c.put((String) e.getKey(), counter);
             }
         }
-        return new Sibling(c, clockBytes(c), RowCodec.encode(record), record, Tombstones.isSet(tombstone, record));
+        return new Sibling(c, record, Tombstones.isSet(tombstone, record));
     }
 
     static byte[] clockBytes(TreeMap<String, Long> clock) {
@@ -132,13 +172,13 @@ public final class VectorClockPolicy implements Policy<VectorClockPolicy.State> 
                 if (o == s) {
                     continue;
                 }
-                if (Arrays.equals(o.clockBytes, s.clockBytes)) {
-                    if (Arrays.compareUnsigned(o.content, s.content) > 0) {
+                if (Arrays.equals(o.clockBytes(), s.clockBytes())) {
+                    if (Arrays.compareUnsigned(o.content(), s.content()) > 0) {
                         counts.conflicts++;
                         beaten = true;
                         break;
                     }
-                } else if (dominates(o.clock, s.clock)) {
+                } else if (dominates(o.clock(), s.clock())) {
                     counts.superseded++;
                     beaten = true;
                     break;
@@ -160,7 +200,7 @@ public final class VectorClockPolicy implements Policy<VectorClockPolicy.State> 
             }
             int c = Long.compare(s.counterSum(), best.counterSum());
             if (c == 0) {
-                c = Arrays.compareUnsigned(s.content, best.content);
+                c = Arrays.compareUnsigned(s.content(), best.content());
             }
             if (c > 0) {
                 best = s;
@@ -173,12 +213,12 @@ public final class VectorClockPolicy implements Policy<VectorClockPolicy.State> 
     public List<Row> visible(State state) {
         if (concurrent == Concurrent.PICK) {
             Sibling p = picked(state);
-            return p.deleted ? List.of() : List.of(p.row);
+            return p.deleted() ? List.of() : List.of(p.row());
         }
         List<Row> out = new ArrayList<>(state.siblings.size());
         for (Sibling s : state.siblings) {
-            if (!s.deleted) {
-                out.add(s.row);
+            if (!s.deleted()) {
+                out.add(s.row());
             }
         }
         return out;
@@ -198,7 +238,7 @@ public final class VectorClockPolicy implements Policy<VectorClockPolicy.State> 
     public void write(ByteWriter out, State state) {
         out.writeVarInt(state.siblings.size());
         for (Sibling s : state.siblings) {
-            serde.write(out, s.row);
+            serde.write(out, s.row());
         }
     }
 
