@@ -17,11 +17,14 @@ public final class ApplyCommand {
         List<Path> in = cl.requiredPaths("in");
         Path dir = cl.requiredPath("archive");
         InputFiles.checkReadable(in);
-        AvroDataset dataset = DatasetFiles.read(cl.requiredPath("schema"), cl.optionalPath("spec"));
+        Path schema = cl.requiredPath("schema");
+        Path spec = cl.optionalPath("spec");
+        AvroDataset dataset = DatasetFiles.read(schema, spec);
+        ArchiveDirectory archive = DatasetFiles.naming(schema, spec, () -> ArchiveDirectory.forApply(dir, dataset));
         Progress progress = Progress.onTerminal(err);
         RunReport report;
         try {
-            report = apply(ArchiveDirectory.forApply(dir, dataset), dataset, in, cl.optionalPath("rejects"), progress);
+            report = apply(archive, dataset, in, cl.optionalPath("rejects"), progress);
         } finally {
             progress.done();
         }

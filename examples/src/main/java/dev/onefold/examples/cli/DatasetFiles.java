@@ -4,6 +4,7 @@ import dev.onefold.OnefoldException;
 import dev.onefold.avro.AvroDataset;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.util.function.Supplier;
 
 /** Reads a dataset from the command line's {@code --schema} and optional {@code --spec} files. Stateless. */
 final class DatasetFiles {
@@ -20,8 +21,16 @@ final class DatasetFiles {
         if (spec != null) {
             requireFile(spec, "spec");
         }
+        return naming(schema, spec, () -> AvroDataset.read(schema, spec));
+    }
+
+    /**
+     * Runs a step that checks the schema or spec (reading them, registering a schema version with an archive) so
+     * that its error names the files: a message that names neither gets them put in front.
+     */
+    static <T> T naming(Path schema, Path spec, Supplier<T> step) {
         try {
-            return AvroDataset.read(schema, spec);
+            return step.get();
         } catch (OnefoldException e) {
             String m = e.getMessage();
             boolean named = m.contains(schema.toString()) || (spec != null && m.contains(spec.toString()));

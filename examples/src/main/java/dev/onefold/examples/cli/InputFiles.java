@@ -12,17 +12,11 @@ import java.nio.charset.CodingErrorAction;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.util.ArrayDeque;
 import java.util.ArrayList;
 import java.util.Collections;
-import java.util.Deque;
 import java.util.Iterator;
 import java.util.List;
 import java.util.NoSuchElementException;
-import java.util.concurrent.ExecutionException;
-import java.util.concurrent.ExecutorService;
-import java.util.concurrent.Executors;
-import java.util.concurrent.Future;
 import java.util.function.UnaryOperator;
 import org.apache.avro.generic.GenericRecord;
 
@@ -31,9 +25,9 @@ import org.apache.avro.generic.GenericRecord;
  * {@link InputRecord}s, in file order and, within a file, in line or record order.
  *
  * <h2>Streaming and parallelism</h2>
- * Lines are read in slices of {@value #SLICE} and each slice is parsed into rows on a worker thread while the
- * caller consumes earlier slices; at most {@value #SLICES_AHEAD} slices per worker are in flight, so memory is
- * bounded by the slices ahead, never by the file. Avro records are decoded on the caller's thread (Avro's reader
+ * Lines are read in slices of {@value #SLICE} and each slice is parsed into rows on a worker thread
+ * ({@link SliceWorkers}) while the caller consumes earlier slices, so memory is bounded by the slices ahead,
+ * never by the file. Avro records are decoded on the caller's thread (Avro's reader
  * is sequential) and converted to rows on the workers. The output order is the input order whatever the timing.
  *
  * <h2>Errors</h2>
@@ -46,16 +40,13 @@ import org.apache.avro.generic.GenericRecord;
  */
 final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     static final int SLICE = 2048;
-    static final int SLICES_AHEAD = 4;
 
     private final List<Path> files;
     private final JsonLines lines;
     private final AvroRecordAccess target;
     private final UnaryOperator<GenericRecord> toTarget;
     private final Progress progress;
-    private final ExecutorService workers;
-    private final int maxInFlight;
-    private final Deque<Future<List<InputRecord>>> inFlight = new ArrayDeque<>();
+    private final SliceWorkers<InputRecord> workers = new SliceWorkers<>("onefold-input");
     private Iterator<InputRecord> current = Collections.emptyIterator();
     private int nextFile;
     private String fileName;
@@ -78,13 +69,6 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
         this.target = target;
         this.toTarget = toTarget;
         this.progress = progress;
-        int threads = Math.max(1, Runtime.getRuntime().availableProcessors() - 1);
-        this.maxInFlight = threads * SLICES_AHEAD;
-        this.workers = Executors.newFixedThreadPool(threads, r -> {
-            Thread t = new Thread(r, "onefold-input");
-            t.setDaemon(true);
-            return t;
-        });
     }
 
     /**
@@ -109,10 +93,10 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     public boolean hasNext() {
         while (!current.hasNext()) {
             fill();
-            if (inFlight.isEmpty()) {
+            if (workers.isEmpty()) {
                 return false;
             }
-            current = take(inFlight.removeFirst()).iterator();
+            current = workers.takeOldest().iterator();
         }
         return true;
     }
@@ -126,23 +110,9 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
         return current.next();
     }
 
-    private static List<InputRecord> take(Future<List<InputRecord>> slice) {
-        try {
-            return slice.get();
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-            throw new OnefoldException(OnefoldException.Kind.IO, "interrupted while reading input", e);
-        } catch (ExecutionException e) {
-            if (e.getCause() instanceof RuntimeException re) {
-                throw re;
-            }
-            throw new IllegalStateException("reading input failed", e.getCause());
-        }
-    }
-
     /** Starts slices until enough are in flight or the input is exhausted. */
     private void fill() {
-        while (inFlight.size() < maxInFlight) {
+        while (!workers.full()) {
             if (lineReader == null && avroReader == null && !openNext()) {
                 return;
             }
@@ -202,7 +172,7 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
         index += texts.size();
         if (!texts.isEmpty()) {
             String file = fileName;
-            inFlight.addLast(workers.submit(() -> parseLines(file, texts, numbers, firstIndex)));
+            workers.submit(() -> parseLines(file, texts, numbers, firstIndex));
         }
     }
 
@@ -238,7 +208,7 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
         index += records.size();
         if (!records.isEmpty()) {
             String file = fileName;
-            inFlight.addLast(workers.submit(() -> convertRecords(file, records, firstIndex)));
+            workers.submit(() -> convertRecords(file, records, firstIndex));
         }
     }
 
@@ -261,7 +231,7 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
 
     @Override
     public void close() {
-        workers.shutdownNow();
+        workers.close();
         try {
             if (lineReader != null) {
                 lineReader.close();

@@ -12,14 +12,19 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.nio.file.StandardCopyOption;
+import java.util.ArrayList;
+import java.util.List;
 import org.apache.avro.Schema;
+import org.apache.avro.generic.GenericRecord;
 
 /**
  * A record file being written: JSON lines or an Avro container file, by the target's ending. Records go to a
  * temporary file beside the target, which replaces the target only on {@link #commit()}; closing without a
  * commit deletes it, so a failed run never leaves a half-written output under the target's name.
  *
- * <p>Single-threaded; must be closed. Cost: one conversion and one write per record.
+ * <p>Rows are converted (to JSON text, or to Avro records) in slices on worker threads ({@link SliceWorkers})
+ * and written in the order they came. Single-threaded for the caller; must be closed. Cost: one conversion and
+ * one write per record.
  */
 final class OutputFile implements AutoCloseable {
     private final Path target;
@@ -28,6 +33,8 @@ final class OutputFile implements AutoCloseable {
     private final RecordAccess<String> lineAccess;
     private final ContainerFiles.Writer avro;
     private final AvroRecordAccess access;
+    private final SliceWorkers<Object> workers = new SliceWorkers<>("onefold-output");
+    private List<Row> slice = new ArrayList<>(InputFiles.SLICE);
     private long count;
     private boolean committed;
 
@@ -64,17 +71,41 @@ final class OutputFile implements AutoCloseable {
     }
 
     void write(Row row) {
-        if (lines != null) {
-            try {
-                lines.write(lineAccess.fromRow(row));
-                lines.write('\n');
-            } catch (IOException e) {
-                throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
-            }
-        } else {
-            avro.accept(access.fromRow(row));
-        }
+        slice.add(row);
         count++;
+        if (slice.size() == InputFiles.SLICE) {
+            submitSlice();
+            while (workers.full()) {
+                emit(workers.takeOldest());
+            }
+        }
+    }
+
+    private void submitSlice() {
+        List<Row> rows = slice;
+        slice = new ArrayList<>(InputFiles.SLICE);
+        workers.submit(() -> {
+            List<Object> out = new ArrayList<>(rows.size());
+            for (Row r : rows) {
+                out.add(lines != null ? lineAccess.fromRow(r) : access.fromRow(r));
+            }
+            return out;
+        });
+    }
+
+    private void emit(List<Object> converted) {
+        for (Object o : converted) {
+            if (lines != null) {
+                try {
+                    lines.write((String) o);
+                    lines.write('\n');
+                } catch (IOException e) {
+                    throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
+                }
+            } else {
+                avro.accept((GenericRecord) o);
+            }
+        }
     }
 
     long count() {
@@ -83,6 +114,12 @@ final class OutputFile implements AutoCloseable {
 
     /** Finishes the file and moves it to the target's name. */
     void commit() {
+        if (!slice.isEmpty()) {
+            submitSlice();
+        }
+        while (!workers.isEmpty()) {
+            emit(workers.takeOldest());
+        }
         closeWriter();
         try {
             Files.move(temp, target, StandardCopyOption.REPLACE_EXISTING, StandardCopyOption.ATOMIC_MOVE);
@@ -107,6 +144,7 @@ final class OutputFile implements AutoCloseable {
 
     @Override
     public void close() {
+        workers.close();
         if (committed) {
             return;
         }
