@@ -25,8 +25,8 @@ import org.apache.avro.generic.GenericRecord;
  * so equal versions are equal records and the model needs no tie-breaking. The model is the trivially correct
  * one (STYLE item 13): collect everything, keep the highest version per key, drop deleted keys, sort by time.
  */
-final class Deliveries {
-    static final String SCHEMA_TEXT = """
+public final class Deliveries {
+    public static final String SCHEMA_TEXT = """
             {"type": "record", "name": "Event", "namespace": "test.cli", "fields": [
               {"name": "id", "type": "string"},
               {"name": "n", "type": "int"},
@@ -36,15 +36,15 @@ final class Deliveries {
               {"name": "deleted", "type": "boolean", "default": false}],
              "onefold": {"key": ["id", "n"], "order": ["at"], "partition": {"field": "at", "unit": "day"},
                          "merge": {"policy": "last-writer", "version": "ver"}, "tombstone": "deleted"}}""";
-    static final String SPEC_TEXT = """
+    public static final String SPEC_TEXT = """
             {"key": ["id", "n"], "order": ["at"], "partition": {"field": "at", "unit": "day"},
              "merge": {"policy": "last-writer", "version": "ver"}, "tombstone": "deleted"}""";
-    static final Schema SCHEMA = new Schema.Parser().parse(SCHEMA_TEXT);
-    static final long DAY0 = 1_900_000_000_000L - 1_900_000_000_000L % 86_400_000L;
+    public static final Schema SCHEMA = new Schema.Parser().parse(SCHEMA_TEXT);
+    public static final long DAY0 = 1_900_000_000_000L - 1_900_000_000_000L % 86_400_000L;
 
     private Deliveries() {}
 
-    static GenericRecord event(int key, long ver) {
+    public static GenericRecord event(int key, long ver) {
         GenericRecord r = new GenericData.Record(SCHEMA);
         r.put("id", String.format("k%05d", key / 4));
         r.put("n", key % 4);
@@ -56,7 +56,7 @@ final class Deliveries {
     }
 
     /** Deliveries of keys [from, to): versions 1..3 per key, each one to three times; every 10th key deleted. */
-    static List<GenericRecord> generate(long seed, int from, int to) {
+    public static List<GenericRecord> generate(long seed, int from, int to) {
         Random random = new Random(seed);
         List<GenericRecord> out = new ArrayList<>();
         for (int key = from; key < to; key++) {
@@ -76,7 +76,7 @@ final class Deliveries {
     }
 
     /** The model: per key the highest version, deleted keys dropped, sorted by time then key. */
-    static List<GenericRecord> expected(Collection<GenericRecord> deliveries) {
+    public static List<GenericRecord> expected(Collection<GenericRecord> deliveries) {
         Map<List<Object>, GenericRecord> best = new HashMap<>();
         for (GenericRecord r : deliveries) {
             best.merge(List.of(r.get("id"), r.get("n")), r, (a, b) -> (long) a.get("ver") >= (long) b.get("ver") ? a : b);
@@ -87,12 +87,12 @@ final class Deliveries {
         return out;
     }
 
-    static List<String> lines(List<GenericRecord> records) {
+    public static List<String> lines(List<GenericRecord> records) {
         JsonLines json = JsonLines.of(SCHEMA);
         return records.stream().map(json::write).toList();
     }
 
-    static Path writeJsonLines(Path file, List<GenericRecord> records, List<String> extraLines) {
+    public static Path writeJsonLines(Path file, List<GenericRecord> records, List<String> extraLines) {
         List<String> text = new ArrayList<>(lines(records));
         for (int i = 0; i < extraLines.size(); i++) {
             text.add(Math.min(text.size(), 3 + i * 5), extraLines.get(i));
@@ -105,14 +105,14 @@ final class Deliveries {
         return file;
     }
 
-    static Path writeAvro(Path file, List<GenericRecord> records, ContainerFiles.Compression compression) {
+    public static Path writeAvro(Path file, List<GenericRecord> records, ContainerFiles.Compression compression) {
         try (ContainerFiles.Writer w = ContainerFiles.create(file, SCHEMA, compression)) {
             records.forEach(w);
         }
         return file;
     }
 
-    static List<GenericRecord> readAvro(Path file) {
+    public static List<GenericRecord> readAvro(Path file) {
         List<GenericRecord> out = new ArrayList<>();
         try (ContainerFiles.Reader r = ContainerFiles.open(file, SCHEMA)) {
             r.forEachRemaining(out::add);
@@ -120,7 +120,7 @@ final class Deliveries {
         return out;
     }
 
-    static Path writeText(Path file, String text) {
+    public static Path writeText(Path file, String text) {
         try {
             Files.writeString(file, text, StandardCharsets.UTF_8);
         } catch (IOException e) {
@@ -129,7 +129,7 @@ final class Deliveries {
         return file;
     }
 
-    static List<String> readLines(Path file) {
+    public static List<String> readLines(Path file) {
         try {
             return Files.readAllLines(file, StandardCharsets.UTF_8);
         } catch (IOException e) {

@@ -322,8 +322,10 @@ class OnefoldToolIT {
         assertFailsWithOneLine(onefold("apply", "--schema", "event-bad.avsc", "--archive", "arch", "--in", "v1.jsonl"),
                 "event-bad.avsc", "/fields/4", "cannot read version 1");
 
+        String withoutSpec = Deliveries.SCHEMA_TEXT.substring(0, Deliveries.SCHEMA_TEXT.indexOf("\"onefold\"")).strip();
+        writeText(dir.resolve("plain.avsc"), withoutSpec.substring(0, withoutSpec.length() - 1) + "}");
         writeText(dir.resolve("other-spec.json"), Deliveries.SPEC_TEXT.replace("\"order\": [\"at\"], ", ""));
-        assertFailsWithOneLine(onefold("apply", "--spec", "other-spec.json", "--schema", "event.avsc", "--archive", "arch",
+        assertFailsWithOneLine(onefold("apply", "--spec", "other-spec.json", "--schema", "plain.avsc", "--archive", "arch",
                 "--in", "v1.jsonl"), "other-spec.json", "differs from the given spec");
     }
 }
