@@ -21,7 +21,7 @@ public final class ApplyCommand {
         Path spec = cl.optionalPath("spec");
         AvroDataset dataset = DatasetFiles.read(schema, spec);
         ArchiveDirectory archive = DatasetFiles.naming(schema, spec, () -> ArchiveDirectory.forApply(dir, dataset));
-        Progress progress = Progress.onTerminal(err);
+        Progress progress = Progress.onTerminal(err, "merging and rewriting the touched partitions");
         RunReport report;
         try {
             report = apply(archive, dataset, in, cl.optionalPath("rejects"), progress);

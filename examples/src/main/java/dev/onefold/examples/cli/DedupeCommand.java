@@ -27,7 +27,7 @@ final class DedupeCommand {
         AvroDataset dataset = DatasetFiles.read(cl.requiredPath("schema"), cl.optionalPath("spec"));
         BatchEngine<InputRecord> engine = BatchEngine.builder(dataset.spec(), InputRecord.access(dataset.access().schema()))
                 .build();
-        Progress progress = Progress.onTerminal(err);
+        Progress progress = Progress.onTerminal(err, "merging, sorting and writing");
         RunReport report;
         try (InputFiles input = new InputFiles(in, JsonLines.of(dataset.schema()), dataset.access(), UnaryOperator.identity(),
                 progress); RejectsFile rejects = RejectsFile.open(cl.optionalPath("rejects"), dataset.schema());

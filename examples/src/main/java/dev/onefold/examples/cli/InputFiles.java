@@ -54,6 +54,7 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     private ContainerFiles.Reader avroReader;
     private long lineNo;
     private long index;
+    private boolean inputDone;
 
     /**
      * @param files    the files, each ending in .jsonl or .avro
@@ -94,6 +95,10 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
         while (!current.hasNext()) {
             fill();
             if (workers.isEmpty()) {
+                if (!inputDone) {
+                    inputDone = true;
+                    progress.inputDone();
+                }
                 return false;
             }
             current = workers.takeOldest().iterator();

@@ -14,24 +14,35 @@ final class Progress {
 
     private final PrintStream err;
     private final boolean shown;
+    private final String afterReading;
     private final long started = System.nanoTime();
     private long records;
     private long lastDrawn;
     private String step = "reading";
     private boolean drawn;
 
-    private Progress(PrintStream err, boolean shown) {
+    private Progress(PrintStream err, boolean shown, String afterReading) {
         this.err = err;
         this.shown = shown;
+        this.afterReading = afterReading;
     }
 
-    /** Progress on {@code err}, shown when the process has a terminal ({@code System.console() != null}). */
-    static Progress onTerminal(PrintStream err) {
-        return new Progress(err, System.console() != null);
+    /**
+     * Progress on {@code err}, shown when the process has a terminal ({@code System.console() != null}).
+     *
+     * @param afterReading the step that follows once the input is read, for example "merging and sorting"
+     */
+    static Progress onTerminal(PrintStream err, String afterReading) {
+        return new Progress(err, System.console() != null, afterReading);
     }
 
     static Progress hidden() {
-        return new Progress(System.err, false);
+        return new Progress(System.err, false, "");
+    }
+
+    /** The input is read; shows the step that follows. */
+    void inputDone() {
+        step(afterReading);
     }
 
     void recordRead() {
