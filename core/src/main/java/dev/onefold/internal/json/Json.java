@@ -217,6 +217,10 @@ public final class Json {
             digits();
         }
         String s = text.substring(start, pos);
+        if (integral && pos - start <= 18) {
+            // up to 18 characters (sign included) always fit a long: skip the BigInteger, the common case in JSON lines
+            return Long.parseLong(s);
+        }
         if (integral) {
             BigInteger bi = new BigInteger(s);
             if (bi.bitLength() < 64) {

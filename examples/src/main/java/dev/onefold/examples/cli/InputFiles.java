@@ -1,0 +1,254 @@
+package dev.onefold.examples.cli;
+
+import dev.onefold.OnefoldException;
+import dev.onefold.avro.AvroRecordAccess;
+import dev.onefold.avro.ContainerFiles;
+import dev.onefold.avro.JsonLines;
+import java.io.BufferedReader;
+import java.io.IOException;
+import java.io.InputStreamReader;
+import java.nio.charset.CharacterCodingException;
+import java.nio.charset.CodingErrorAction;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.Collections;
+import java.util.Iterator;
+import java.util.List;
+import java.util.NoSuchElementException;
+import java.util.function.UnaryOperator;
+import org.apache.avro.generic.GenericRecord;
+
+/**
+ * Reads record files ({@code .jsonl} and {@code .avro}, by ending) one after another as one stream of
+ * {@link InputRecord}s, in file order and, within a file, in line or record order.
+ *
+ * <h2>Streaming and parallelism</h2>
+ * Lines are read in slices of {@value #SLICE} and each slice is parsed into rows on a worker thread
+ * ({@link SliceWorkers}) while the caller consumes earlier slices, so memory is bounded by the slices ahead,
+ * never by the file. Avro records are decoded on the caller's thread (Avro's reader
+ * is sequential) and converted to rows on the workers. The output order is the input order whatever the timing.
+ *
+ * <h2>Errors</h2>
+ * A line or record that cannot be read into a row of the dataset's schema becomes an unreadable input record
+ * carrying the reason, naming the file, the line and the field, so the engine rejects it and carries on. A file
+ * that cannot be opened or read at all (missing, not UTF-8, a corrupt container file) is an OnefoldException
+ * naming the file, which ends the run.
+ *
+ * <p>Single-threaded for the caller; must be closed, which stops the workers. Cost: linear in the input.
+ */
+final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
+    static final int SLICE = 2048;
+
+    private final List<Path> files;
+    private final JsonLines lines;
+    private final AvroRecordAccess target;
+    private final UnaryOperator<GenericRecord> toTarget;
+    private final Progress progress;
+    private final SliceWorkers<InputRecord> workers = new SliceWorkers<>("onefold-input");
+    private Iterator<InputRecord> current = Collections.emptyIterator();
+    private int nextFile;
+    private String fileName;
+    private BufferedReader lineReader;
+    private ContainerFiles.Reader avroReader;
+    private long lineNo;
+    private long index;
+    private boolean inputDone;
+
+    /**
+     * @param files    the files, each ending in .jsonl or .avro
+     * @param lines    parses JSON lines under the files' schema
+     * @param target   reads records of the dataset's schema into rows; Avro files are resolved to its schema
+     * @param toTarget turns a record parsed from JSON lines into a record of the target schema (identity when
+     *                 both schemas are the same)
+     */
+    InputFiles(List<Path> files, JsonLines lines, AvroRecordAccess target, UnaryOperator<GenericRecord> toTarget,
+            Progress progress) {
+        this.files = List.copyOf(files);
+        this.lines = lines;
+        this.target = target;
+        this.toTarget = toTarget;
+        this.progress = progress;
+    }
+
+    /**
+     * Checks before any work starts that every file has a known ending and can be read, so a typo ends the run
+     * before an output is half written.
+     *
+     * @throws OnefoldException (USAGE) for an unknown ending, (IO) naming a file that is missing or unreadable
+     */
+    static void checkReadable(List<Path> files) {
+        for (Path f : files) {
+            FileFormat.of(f);
+            if (!Files.isRegularFile(f)) {
+                throw new OnefoldException(OnefoldException.Kind.IO, f + ": no such file");
+            }
+            if (!Files.isReadable(f)) {
+                throw new OnefoldException(OnefoldException.Kind.IO, f + ": cannot read (permission denied)");
+            }
+        }
+    }
+
+    @Override
+    public boolean hasNext() {
+        while (!current.hasNext()) {
+            fill();
+            if (workers.isEmpty()) {
+                if (!inputDone) {
+                    inputDone = true;
+                    progress.inputDone();
+                }
+                return false;
+            }
+            current = workers.takeOldest().iterator();
+        }
+        return true;
+    }
+
+    @Override
+    public InputRecord next() {
+        if (!hasNext()) {
+            throw new NoSuchElementException("no more input records");
+        }
+        progress.recordRead();
+        return current.next();
+    }
+
+    /** Starts slices until enough are in flight or the input is exhausted. */
+    private void fill() {
+        while (!workers.full()) {
+            if (lineReader == null && avroReader == null && !openNext()) {
+                return;
+            }
+            if (lineReader != null) {
+                readLines();
+            } else {
+                readAvro();
+            }
+        }
+    }
+
+    private boolean openNext() {
+        if (nextFile >= files.size()) {
+            return false;
+        }
+        Path file = files.get(nextFile++);
+        fileName = file.toString();
+        lineNo = 0;
+        index = 0;
+        if (FileFormat.of(file) == FileFormat.JSON_LINES) {
+            try {
+                lineReader = new BufferedReader(new InputStreamReader(Files.newInputStream(file),
+                        StandardCharsets.UTF_8.newDecoder().onMalformedInput(CodingErrorAction.REPORT)
+                                .onUnmappableCharacter(CodingErrorAction.REPORT)), 1 << 16);
+            } catch (IOException e) {
+                throw new OnefoldException(OnefoldException.Kind.IO, fileName + ": cannot open: " + e.getMessage(), e);
+            }
+        } else {
+            avroReader = ContainerFiles.open(file, target.avroSchema());
+        }
+        return true;
+    }
+
+    private void readLines() {
+        List<String> texts = new ArrayList<>(SLICE);
+        long[] numbers = new long[SLICE];
+        long firstIndex = index;
+        try {
+            String text;
+            while (texts.size() < SLICE && (text = lineReader.readLine()) != null) {
+                lineNo++;
+                if (!text.isBlank()) {
+                    numbers[texts.size()] = lineNo;
+                    texts.add(text);
+                }
+            }
+            if (texts.size() < SLICE) {
+                lineReader.close();
+                lineReader = null;
+            }
+        } catch (CharacterCodingException e) {
+            throw new OnefoldException(OnefoldException.Kind.IO, fileName + " line " + (lineNo + 1)
+                    + ": not valid UTF-8 text; a JSON lines file must be UTF-8", e);
+        } catch (IOException e) {
+            throw new OnefoldException(OnefoldException.Kind.IO, fileName + ": cannot read: " + e.getMessage(), e);
+        }
+        index += texts.size();
+        if (!texts.isEmpty()) {
+            String file = fileName;
+            workers.submit(() -> parseLines(file, texts, numbers, firstIndex));
+        }
+    }
+
+    private List<InputRecord> parseLines(String file, List<String> texts, long[] numbers, long firstIndex) {
+        List<InputRecord> out = new ArrayList<>(texts.size());
+        for (int i = 0; i < texts.size(); i++) {
+            String where = file + " line " + numbers[i];
+            String text = texts.get(i);
+            try {
+                GenericRecord record = toTarget.apply(lines.parse(text, where));
+                out.add(InputRecord.read(file, numbers[i], firstIndex + i, target.toRow(record)));
+            } catch (OnefoldException e) {
+                if (e.kind() != OnefoldException.Kind.INVALID_RECORD) {
+                    throw e;
+                }
+                String reason = e.getMessage().startsWith(where) ? e.getMessage() : where + ": " + e.getMessage();
+                out.add(InputRecord.unreadable(file, numbers[i], firstIndex + i, reason, text));
+            }
+        }
+        return out;
+    }
+
+    private void readAvro() {
+        List<GenericRecord> records = new ArrayList<>(SLICE);
+        while (records.size() < SLICE && avroReader.hasNext()) {
+            records.add(avroReader.next());
+        }
+        if (records.size() < SLICE) {
+            avroReader.close();
+            avroReader = null;
+        }
+        long firstIndex = index;
+        index += records.size();
+        if (!records.isEmpty()) {
+            String file = fileName;
+            workers.submit(() -> convertRecords(file, records, firstIndex));
+        }
+    }
+
+    private List<InputRecord> convertRecords(String file, List<GenericRecord> records, long firstIndex) {
+        List<InputRecord> out = new ArrayList<>(records.size());
+        for (int i = 0; i < records.size(); i++) {
+            long at = firstIndex + i;
+            try {
+                out.add(InputRecord.read(file, -1, at, target.toRow(records.get(i))));
+            } catch (OnefoldException e) {
+                if (e.kind() != OnefoldException.Kind.INVALID_RECORD) {
+                    throw e;
+                }
+                out.add(InputRecord.unreadable(file, -1, at, file + " record " + at + ": " + e.getMessage(),
+                        String.valueOf(records.get(i))));
+            }
+        }
+        return out;
+    }
+
+    @Override
+    public void close() {
+        workers.close();
+        try {
+            if (lineReader != null) {
+                lineReader.close();
+            }
+        } catch (IOException e) {
+            throw new OnefoldException(OnefoldException.Kind.IO, fileName + ": cannot close: " + e.getMessage(), e);
+        } finally {
+            lineReader = null;
+            if (avroReader != null) {
+                avroReader.close();
+                avroReader = null;
+            }
+        }
+    }
+}

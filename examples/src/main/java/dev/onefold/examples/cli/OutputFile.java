@@ -1,0 +1,162 @@
+package dev.onefold.examples.cli;
+
+import dev.onefold.OnefoldException;
+import dev.onefold.avro.AvroRecordAccess;
+import dev.onefold.avro.ContainerFiles;
+import dev.onefold.avro.JsonLines;
+import dev.onefold.record.Row;
+import dev.onefold.spi.RecordAccess;
+import java.io.BufferedWriter;
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.nio.file.StandardCopyOption;
+import java.util.ArrayList;
+import java.util.List;
+import org.apache.avro.Schema;
+import org.apache.avro.generic.GenericRecord;
+
+/**
+ * A record file being written: JSON lines or an Avro container file, by the target's ending. Records go to a
+ * temporary file beside the target, which replaces the target only on {@link #commit()}; closing without a
+ * commit deletes it, so a failed run never leaves a half-written output under the target's name.
+ *
+ * <p>Rows are converted (to JSON text, or to Avro records) in slices on worker threads ({@link SliceWorkers})
+ * and written in the order they came. Single-threaded for the caller; must be closed. Cost: one conversion and
+ * one write per record.
+ */
+final class OutputFile implements AutoCloseable {
+    private final Path target;
+    private final Path temp;
+    private final BufferedWriter lines;
+    private final RecordAccess<String> lineAccess;
+    private final ContainerFiles.Writer avro;
+    private final AvroRecordAccess access;
+    private final SliceWorkers<Object> workers = new SliceWorkers<>("onefold-output");
+    private List<Row> slice = new ArrayList<>(InputFiles.SLICE);
+    private long count;
+    private boolean committed;
+
+    private OutputFile(Path target, Schema schema, ContainerFiles.Compression compression) {
+        this.target = target;
+        FileFormat format = FileFormat.of(target);
+        Path dir = target.toAbsolutePath().getParent();
+        try {
+            Files.createDirectories(dir);
+            this.temp = Files.createTempFile(dir, "." + target.getFileName(), ".partial");
+        } catch (IOException e) {
+            throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot create: " + e.getMessage(), e);
+        }
+        if (format == FileFormat.JSON_LINES) {
+            this.lineAccess = JsonLines.of(schema).lineAccess();
+            this.access = null;
+            this.avro = null;
+            try {
+                this.lines = Files.newBufferedWriter(temp, StandardCharsets.UTF_8);
+            } catch (IOException e) {
+                throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
+            }
+        } else {
+            this.lineAccess = null;
+            this.lines = null;
+            this.access = AvroRecordAccess.of(schema);
+            this.avro = ContainerFiles.create(temp, schema, compression);
+        }
+    }
+
+    /** Starts writing records of {@code schema} to {@code target}; {@code compression} applies to .avro targets. */
+    static OutputFile create(Path target, Schema schema, ContainerFiles.Compression compression) {
+        return new OutputFile(target, schema, compression);
+    }
+
+    void write(Row row) {
+        slice.add(row);
+        count++;
+        if (slice.size() == InputFiles.SLICE) {
+            submitSlice();
+            while (workers.full()) {
+                emit(workers.takeOldest());
+            }
+        }
+    }
+
+    private void submitSlice() {
+        List<Row> rows = slice;
+        slice = new ArrayList<>(InputFiles.SLICE);
+        workers.submit(() -> {
+            List<Object> out = new ArrayList<>(rows.size());
+            for (Row r : rows) {
+                out.add(lines != null ? lineAccess.fromRow(r) : access.fromRow(r));
+            }
+            return out;
+        });
+    }
+
+    private void emit(List<Object> converted) {
+        for (Object o : converted) {
+            if (lines != null) {
+                try {
+                    lines.write((String) o);
+                    lines.write('\n');
+                } catch (IOException e) {
+                    throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
+                }
+            } else {
+                avro.accept((GenericRecord) o);
+            }
+        }
+    }
+
+    long count() {
+        return count;
+    }
+
+    /** Finishes the file and moves it to the target's name. */
+    void commit() {
+        if (!slice.isEmpty()) {
+            submitSlice();
+        }
+        while (!workers.isEmpty()) {
+            emit(workers.takeOldest());
+        }
+        closeWriter();
+        try {
+            Files.move(temp, target, StandardCopyOption.REPLACE_EXISTING, StandardCopyOption.ATOMIC_MOVE);
+        } catch (IOException e) {
+            throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot move the finished file into place: "
+                    + e.getMessage(), e);
+        }
+        committed = true;
+    }
+
+    private void closeWriter() {
+        try {
+            if (lines != null) {
+                lines.close();
+            } else {
+                avro.close();
+            }
+        } catch (IOException e) {
+            throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
+        }
+    }
+
+    @Override
+    public void close() {
+        workers.close();
+        if (committed) {
+            return;
+        }
+        try {
+            closeWriter();
+        } finally {
+            try {
+                Files.deleteIfExists(temp);
+            } catch (IOException e) {
+                throw new OnefoldException(OnefoldException.Kind.IO, temp + ": cannot delete the unfinished file: "
+                        + e.getMessage(), e);
+            }
+        }
+    }
+}
