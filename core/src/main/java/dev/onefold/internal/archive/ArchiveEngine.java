@@ -148,7 +148,11 @@ public final class ArchiveEngine {
         }
     }
 
-    /** Runs tasks on the worker pool, reusing results of identical tasks already run; results in task order. */
+    /**
+     * Runs tasks on the worker pool, reusing results of identical tasks already run; results in task order. The
+     * new files of all tasks are synced together at the end (one storage call, so directories the partitions
+     * share are synced once rather than once per partition), before any result can be committed.
+     */
     private List<RewriteResult> runAll(List<RewriteTask> tasks, Map<Long, RewriteResult> done) {
         List<RewriteResult> out = new ArrayList<>(tasks.size());
         List<RewriteTask> todo = new ArrayList<>();
@@ -160,7 +164,7 @@ public final class ArchiveEngine {
         int threads = Math.min(settings.parallelism(), todo.size());
         if (threads <= 1) {
             for (RewriteTask t : todo) {
-                done.put(t.fingerprint(), rewrite(t));
+                done.put(t.fingerprint(), rewriter.runUnsynced(t));
             }
         } else {
             ExecutorService pool = Executors.newFixedThreadPool(threads, r -> {
@@ -171,7 +175,7 @@ public final class ArchiveEngine {
             try {
                 List<Future<RewriteResult>> futures = new ArrayList<>();
                 for (RewriteTask t : todo) {
-                    futures.add(pool.submit(() -> rewrite(t)));
+                    futures.add(pool.submit(() -> rewriter.runUnsynced(t)));
                 }
                 RuntimeException failure = null;
                 for (int i = 0; i < todo.size(); i++) {
@@ -197,6 +201,11 @@ public final class ArchiveEngine {
                 pool.shutdownNow();
             }
         }
+        List<RewriteResult> fresh = new ArrayList<>(todo.size());
+        for (RewriteTask t : todo) {
+            fresh.add(done.get(t.fingerprint()));
+        }
+        PartitionRewriter.sync(chunks.storage(), fresh);
         for (RewriteTask t : tasks) {
             out.add(done.get(t.fingerprint()));
         }

@@ -83,7 +83,7 @@ public final class ChunkStore {
     /** Writes a finished chunk under a new unique name in the partition's directory (not yet synced). */
     public ChunkRef write(String partitionName, String writerId, ChunkFormat.Builder builder, IoCounters io) {
         String name = newChunkName(partitionName);
-        ByteWriter out = new ByteWriter((int) Math.min(Integer.MAX_VALUE - 16, builder.approximateBytes() + 256));
+        ByteWriter out = new ByteWriter((int) Math.min(Integer.MAX_VALUE - 16, builder.expectedFileBytes() + 256));
         ChunkRef ref = builder.finish(name, writerId, out);
         storage.write(name, out.toByteArray());
         io.bytesWritten.addAndGet(out.length());
