@@ -41,14 +41,21 @@ public final class ApplyWorkload {
             .build();
 
     private final int hours;
+    private final int perHour;
 
     /** A workload over {@code historyRecords} stored records (a multiple of {@link #PER_HOUR}, at least 85 hours). */
     public ApplyWorkload(long historyRecords) {
-        if (historyRecords % PER_HOUR != 0 || historyRecords / PER_HOUR < LATE_START + 2 * LATE_HOURS + 1) {
-            throw new IllegalArgumentException("history must be a multiple of " + PER_HOUR + " records covering at least "
+        this(historyRecords, PER_HOUR);
+    }
+
+    /** The same with {@code perHour} records per hour (small ones for tests). */
+    ApplyWorkload(long historyRecords, int perHour) {
+        if (perHour < 1 || historyRecords % perHour != 0 || historyRecords / perHour < LATE_START + 2 * LATE_HOURS + 1) {
+            throw new IllegalArgumentException("history must be a multiple of " + perHour + " records covering at least "
                     + (LATE_START + 2 * LATE_HOURS + 1) + " hours, got " + historyRecords);
         }
-        this.hours = (int) (historyRecords / PER_HOUR);
+        this.hours = (int) (historyRecords / perHour);
+        this.perHour = perHour;
     }
 
     /** Last-writer on {@code seq}, ordered by {@code ts}, hourly partitions whose value a key keeps for life. */
@@ -62,7 +69,7 @@ public final class ApplyWorkload {
     }
 
     public long historyRecords() {
-        return (long) hours * PER_HOUR;
+        return (long) hours * perHour;
     }
 
     /** The stored history of hours {@code [fromHour, toHour)}, hour by hour. */
@@ -82,7 +89,7 @@ public final class ApplyWorkload {
                     throw new NoSuchElementException();
                 }
                 Row r = stored(hour, i, 1);
-                if (++i == PER_HOUR) {
+                if (++i == perHour) {
                     i = 0;
                     hour++;
                 }
@@ -117,7 +124,7 @@ public final class ApplyWorkload {
                 if (out.size() % 10 == 9) {
                     r = out.get(out.size() - 1);
                 } else if (storedHour && i % 5 == 0) {
-                    r = stored(hour, (i * 7) % PER_HOUR, 2);
+                    r = stored(hour, (i * 7) % perHour, 2);
                 } else {
                     r = fresh(hour, i);
                 }
@@ -132,14 +139,14 @@ public final class ApplyWorkload {
     }
 
     /** Record {@code i} of a stored hour at version {@code seq}; keys are scrambled so key order is not time order. */
-    static Row stored(int hour, int i, long seq) {
-        long n = (long) hour * PER_HOUR + i;
-        return row(scramble(n), seq, EPOCH + hour * HOUR + i * (HOUR / PER_HOUR), n);
+    private Row stored(int hour, int i, long seq) {
+        long n = (long) hour * perHour + i;
+        return row(scramble(n), seq, EPOCH + hour * HOUR + i * (HOUR / perHour), n);
     }
 
-    /** A key the history does not hold, in {@code hour}. */
-    static Row fresh(int hour, int i) {
-        long n = (1L << 40) + (long) hour * PER_HOUR * 10 + i;
+    /** A key the history does not hold, in {@code hour} (at most {@link #BATCH} per hour, so none collide). */
+    private static Row fresh(int hour, int i) {
+        long n = (1L << 40) + (long) hour * BATCH + i;
         return row(scramble(n), 1, EPOCH + hour * HOUR + (i * 7919L) % HOUR, n);
     }
 

@@ -14,17 +14,19 @@ import org.roaringbitmap.RoaringBitmap;
 /**
  * Reads and writes chunk files through a {@link Storage}: whole chunks checked against their manifest record,
  * key-hash indexes read alone (a ranged read of the index section) and cached by chunk name, which is safe
- * because chunk files are immutable. Thread-safe. The index cache holds up to 64 MiB of bitmaps.
+ * because chunk files are immutable. Thread-safe. The index cache's size is set by its creator.
  */
 public final class ChunkStore {
     private final Storage storage;
-    private final Cache<String, RoaringBitmap> indexes = Caffeine.newBuilder()
-            .maximumWeight(64L << 20)
-            .weigher((String k, RoaringBitmap v) -> 64 + k.length() + (int) Math.min(Integer.MAX_VALUE, v.getLongSizeInBytes()))
-            .build();
+    private final Cache<String, RoaringBitmap> indexes;
 
-    public ChunkStore(Storage storage) {
+    /** A store whose index cache holds at most {@code indexCacheBytes} of bitmaps. */
+    public ChunkStore(Storage storage, long indexCacheBytes) {
         this.storage = storage;
+        this.indexes = Caffeine.newBuilder()
+                .maximumWeight(indexCacheBytes)
+                .weigher((String k, RoaringBitmap v) -> 64 + k.length() + (int) Math.min(Integer.MAX_VALUE, v.getLongSizeInBytes()))
+                .build();
     }
 
     public Storage storage() {
