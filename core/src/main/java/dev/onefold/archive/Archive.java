@@ -244,7 +244,11 @@ public final class Archive<R> {
             return this;
         }
 
-        /** Memory for consolidating a batch before spilling (default: a quarter of the heap, at most 256 MiB). */
+        /**
+         * Memory for one apply (default: a quarter of the heap, at most 256 MiB): folding the batch by key and
+         * grouping it by partition (each half of it, spilling beyond), then planning it in slices of a quarter of
+         * it; a quarter of it (at most 64 MiB) also caches key-hash indexes.
+         */
         public Builder<R> memoryBudgetBytes(long bytes) {
             if (bytes < 1024) {
                 throw OnefoldException.usage("memory budget must be at least 1024 bytes, got " + bytes);

@@ -184,7 +184,7 @@ public final class ArchiveEngine {
         RoaringBitmap hashes = new RoaringBitmap();
         Manifest[] working = {base};
         long[] sums = new long[4];
-        Plan[] only = {null};
+        Staged[] only = {null};
         int[] slices = {0};
         batch.forEachSlice(Math.max(1, settings.memoryBudgetBytes() / 4), slice -> {
             Plan p = plan(slice, working[0], now);
@@ -202,12 +202,14 @@ public final class ArchiveEngine {
             sums[1] += p.archiveSuperseded();
             sums[2] += p.archiveConflicts();
             sums[3] += p.planBytesRead();
-            only[0] = p;
+            only[0] = new Staged(p, results, List.of());
             slices[0]++;
         });
-        if (slices[0] <= 1) {
-            Plan p = only[0] != null ? only[0] : plan(List.of(), base, now);
-            return new Staged(p, runAll(p.tasks(), done), List.of());
+        if (slices[0] == 0) {
+            return new Staged(plan(List.of(), base, now), List.of(), List.of());
+        }
+        if (slices[0] == 1) {
+            return only[0];
         }
         Plan combined = new Plan(base, List.of(), fingerprints, hashes, sums[0], sums[1], sums[2], sums[3]);
         return new Staged(combined, new ArrayList<>(last.values()), superseded);
