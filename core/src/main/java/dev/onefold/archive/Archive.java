@@ -7,6 +7,7 @@ import dev.onefold.Rejection;
 import dev.onefold.internal.archive.ArchiveEngine;
 import dev.onefold.internal.archive.ArchiveSettings;
 import dev.onefold.internal.archive.DatasetCodecs;
+import dev.onefold.internal.archive.GroupedBatch;
 import dev.onefold.internal.archive.Manifest;
 import dev.onefold.internal.archive.Plan;
 import dev.onefold.internal.archive.RewriteResult;
@@ -39,8 +40,9 @@ import java.util.function.Consumer;
  * exactly one partition, the partition of its merged record's anchor, so a key whose partition value changes
  * moves. A crash at any point leaves the last committed version intact.
  *
- * <p>Cost: an apply costs the batch (consolidated under the memory budget) plus reading and rewriting only
- * the partitions it touches, never the history; finding keys that moved costs a key-hash index probe per
+ * <p>Cost: an apply costs the batch (consolidated and grouped by partition under the memory budget, spilling to
+ * the spill directory, then planned in slices) plus reading and rewriting only the partitions it touches, never
+ * the history; finding keys that moved costs a key-hash index probe per
  * chunk unless the partition rule is declared {@code stable}. Concurrent writers, in threads or processes,
  * are safe: one commit wins each version, the others rebase and retry (bounded). Work can also be split:
  * {@link #plan} a batch, {@link #rewrite} its {@link PartitionTask}s anywhere, {@link #commit} the results.
@@ -90,9 +92,10 @@ public final class Archive<R> {
     private ApplyReport apply(Iterator<? extends R> records, String source, Consumer<Rejection> rejects,
             List<Rejection> collected) {
         Objects.requireNonNull(records, "records");
-        ArchiveEngine.Batch batch = engine.consolidate(records, access, source, rejects);
-        ArchiveEngine.Applied a = engine.apply(batch);
-        return report(a.manifest(), batch.report(), collected, a.plan(), a.results(), a.attempts(), a.planBytesRead());
+        try (GroupedBatch batch = engine.consolidate(records, access, source, rejects)) {
+            ArchiveEngine.Applied a = engine.apply(batch);
+            return report(a.manifest(), batch.report(), collected, a.plan(), a.results(), a.attempts(), a.planBytesRead());
+        }
     }
 
     private static ApplyReport report(Manifest m, BatchReport batch, List<Rejection> rejections, Plan plan,
@@ -134,12 +137,17 @@ public final class Archive<R> {
         return engine.committer().versions();
     }
 
-    /** Consolidates a batch and plans it against the latest version, for workers to {@link #rewrite}. */
+    /**
+     * Consolidates a batch and plans it against the latest version, for workers to {@link #rewrite}. The plan
+     * carries the batch's merged states inside its tasks, so the batch is held in memory (unlike {@link #apply},
+     * which works through a batch of any size in slices under the memory budget).
+     */
     public ApplyPlan plan(Iterable<? extends R> records) {
         List<Rejection> rejections = new ArrayList<>();
-        ArchiveEngine.Batch batch = engine.consolidate(records.iterator(), access, "batch", rejections::add);
-        Plan plan = engine.plan(batch, null, engine.settings().clock().millis());
-        return new ApplyPlan(plan, batch.report(), rejections);
+        try (GroupedBatch batch = engine.consolidate(records.iterator(), access, "batch", rejections::add)) {
+            Plan plan = engine.plan(batch, null, engine.settings().clock().millis());
+            return new ApplyPlan(plan, batch.report(), rejections);
+        }
     }
 
     /** Rewrites one partition of a plan; its files are written and synced when it returns. Any thread or process. */
@@ -236,7 +244,11 @@ public final class Archive<R> {
             return this;
         }
 
-        /** Memory for consolidating a batch before spilling (default: a quarter of the heap, at most 256 MiB). */
+        /**
+         * Memory for one apply (default: a quarter of the heap, at most 256 MiB): folding the batch by key and
+         * grouping it by partition (each half of it, spilling beyond), then planning it in slices of a quarter of
+         * it; a quarter of it (at most 64 MiB) also caches key-hash indexes.
+         */
         public Builder<R> memoryBudgetBytes(long bytes) {
             if (bytes < 1024) {
                 throw OnefoldException.usage("memory budget must be at least 1024 bytes, got " + bytes);

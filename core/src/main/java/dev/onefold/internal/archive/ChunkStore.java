@@ -14,17 +14,19 @@ import org.roaringbitmap.RoaringBitmap;
 /**
  * Reads and writes chunk files through a {@link Storage}: whole chunks checked against their manifest record,
  * key-hash indexes read alone (a ranged read of the index section) and cached by chunk name, which is safe
- * because chunk files are immutable. Thread-safe. The index cache holds up to 64 MiB of bitmaps.
+ * because chunk files are immutable. Thread-safe. The index cache's size is set by its creator.
  */
 public final class ChunkStore {
     private final Storage storage;
-    private final Cache<String, RoaringBitmap> indexes = Caffeine.newBuilder()
-            .maximumWeight(64L << 20)
-            .weigher((String k, RoaringBitmap v) -> 64 + k.length() + (int) Math.min(Integer.MAX_VALUE, v.getLongSizeInBytes()))
-            .build();
+    private final Cache<String, RoaringBitmap> indexes;
 
-    public ChunkStore(Storage storage) {
+    /** A store whose index cache holds at most {@code indexCacheBytes} of bitmaps. */
+    public ChunkStore(Storage storage, long indexCacheBytes) {
         this.storage = storage;
+        this.indexes = Caffeine.newBuilder()
+                .maximumWeight(indexCacheBytes)
+                .weigher((String k, RoaringBitmap v) -> 64 + k.length() + (int) Math.min(Integer.MAX_VALUE, v.getLongSizeInBytes()))
+                .build();
     }
 
     public Storage storage() {
@@ -83,7 +85,7 @@ public final class ChunkStore {
     /** Writes a finished chunk under a new unique name in the partition's directory (not yet synced). */
     public ChunkRef write(String partitionName, String writerId, ChunkFormat.Builder builder, IoCounters io) {
         String name = newChunkName(partitionName);
-        ByteWriter out = new ByteWriter((int) Math.min(Integer.MAX_VALUE - 16, builder.approximateBytes() + 256));
+        ByteWriter out = new ByteWriter((int) Math.min(Integer.MAX_VALUE - 16, builder.expectedFileBytes() + 256));
         ChunkRef ref = builder.finish(name, writerId, out);
         storage.write(name, out.toByteArray());
         io.bytesWritten.addAndGet(out.length());

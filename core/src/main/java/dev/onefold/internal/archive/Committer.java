@@ -136,18 +136,16 @@ public final class Committer {
                 throw OnefoldException.usage("two results for partition " + r.partition().name());
             }
         }
-        Set<String> expected = new HashSet<>();
-        for (RewriteTask t : plan.tasks()) {
-            expected.add(t.name());
-            RewriteResult r = byName.get(t.name());
+        for (Map.Entry<String, Long> t : plan.fingerprints().entrySet()) {
+            RewriteResult r = byName.get(t.getKey());
             if (r == null) {
-                throw OnefoldException.usage("no result for partition " + t.name() + " of the plan");
+                throw OnefoldException.usage("no result for partition " + t.getKey() + " of the plan");
             }
-            if (r.taskFingerprint() != t.fingerprint()) {
-                throw OnefoldException.usage("the result for partition " + t.name() + " answers a different task");
+            if (r.taskFingerprint() != t.getValue()) {
+                throw OnefoldException.usage("the result for partition " + t.getKey() + " answers a different task");
             }
         }
-        if (!expected.containsAll(byName.keySet())) {
+        if (!plan.fingerprints().keySet().containsAll(byName.keySet())) {
             throw OnefoldException.usage("results name partitions the plan does not touch");
         }
         return byName;
@@ -157,10 +155,7 @@ public final class Committer {
     private boolean interferes(Plan plan, Manifest current) {
         Map<String, PartitionEntry> before = plan.base().byName();
         Map<String, PartitionEntry> now = current.byName();
-        Set<String> touched = new HashSet<>();
-        for (RewriteTask t : plan.tasks()) {
-            touched.add(t.name());
-        }
+        Set<String> touched = plan.fingerprints().keySet();
         TreeSet<String> names = new TreeSet<>(before.keySet());
         names.addAll(now.keySet());
         IoCounters io = new IoCounters();

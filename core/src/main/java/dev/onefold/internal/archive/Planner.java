@@ -3,6 +3,7 @@ package dev.onefold.internal.archive;
 import dev.onefold.internal.engine.KeyedState;
 import dev.onefold.internal.merge.MergeCounts;
 import dev.onefold.internal.merge.Policy;
+import dev.onefold.reconcile.Digest;
 import java.nio.ByteBuffer;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -144,10 +145,31 @@ public final class Planner {
             List<byte[]> rm = removed.getOrDefault(name, List.of());
             tasks.put(name, new RewriteTask(p != null ? p.values() : values.get(name), name,
                     p != null ? p.chunks() : List.of(), rm, sorted, codecs.writerId(), nowMillis, horizonMillis,
-                    chunkTargetBytes));
+                    chunkTargetBytes, derivableDigest(p)));
         }
         return new Plan(base, new ArrayList<>(tasks.values()), hashes, moved, counts.superseded, counts.conflicts,
                 io.bytesRead());
+    }
+
+    /**
+     * The stored digest of a partition when its rewrite may derive the new digest from it (stored minus removed
+     * plus incoming), so kept entries need no decoding: when the spec declares no checks (a min or max cannot be
+     * un-added, and a sum cannot tell when it must become empty again) and every chunk is under the current writer
+     * id (an older one's digest rows may differ from the current codec's). Otherwise null.
+     */
+    private Digest derivableDigest(PartitionEntry p) {
+        if (!codecs.spec().checks().isEmpty()) {
+            return null;
+        }
+        if (p == null) {
+            return Digest.empty(0);
+        }
+        for (ChunkRef c : p.chunks()) {
+            if (!c.writerId().equals(codecs.writerId())) {
+                return null;
+            }
+        }
+        return p.digest();
     }
 
     private static SortedSet<String> union(Set<String> a, Set<String> b) {

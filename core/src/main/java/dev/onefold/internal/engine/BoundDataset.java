@@ -16,9 +16,8 @@ import dev.onefold.record.FieldType;
 import dev.onefold.record.FieldType.Kind;
 import dev.onefold.record.Row;
 import dev.onefold.record.RowSchema;
-import java.time.Instant;
+import java.time.LocalDateTime;
 import java.time.ZoneOffset;
-import java.time.ZonedDateTime;
 import java.util.ArrayList;
 import java.util.EnumSet;
 import java.util.List;
@@ -300,11 +299,31 @@ public final class BoundDataset {
             case DATE -> Math.multiplyExact(value, 86_400_000L);
             default -> value;
         };
-        ZonedDateTime t = Instant.ofEpochMilli(millis).atZone(ZoneOffset.UTC);
-        return switch (unit) {
-            case HOUR -> String.format("%04d-%02d-%02dT%02d", t.getYear(), t.getMonthValue(), t.getDayOfMonth(), t.getHour());
-            case DAY -> String.format("%04d-%02d-%02d", t.getYear(), t.getMonthValue(), t.getDayOfMonth());
-            case MONTH -> String.format("%04d-%02d", t.getYear(), t.getMonthValue());
-        };
+        LocalDateTime t = LocalDateTime.ofEpochSecond(Math.floorDiv(millis, 1000L), 0, ZoneOffset.UTC);
+        // Built by hand rather than with String.format, which costs microseconds per call (it parses the pattern
+        // and looks up locale digits) and sat on every batch key's path; the digits are ASCII in every locale.
+        StringBuilder b = new StringBuilder(13);
+        padded(b, t.getYear(), 4).append('-');
+        padded(b, t.getMonthValue(), 2);
+        if (unit != DatasetSpec.TimeUnit.MONTH) {
+            padded(b.append('-'), t.getDayOfMonth(), 2);
+        }
+        if (unit == DatasetSpec.TimeUnit.HOUR) {
+            padded(b.append('T'), t.getHour(), 2);
+        }
+        return b.toString();
+    }
+
+    /** Appends {@code v} zero-padded to {@code width} characters, sign included (as {@code %0<width>d} does). */
+    private static StringBuilder padded(StringBuilder b, int v, int width) {
+        String digits = Integer.toString(Math.abs(v));
+        if (v < 0) {
+            b.append('-');
+            width--;
+        }
+        for (int i = digits.length(); i < width; i++) {
+            b.append('0');
+        }
+        return b.append(digits);
     }
 }
