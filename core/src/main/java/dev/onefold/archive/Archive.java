@@ -25,6 +25,7 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Objects;
+import java.util.concurrent.atomic.AtomicReference;
 import java.util.function.Consumer;
 
 /**
@@ -51,6 +52,8 @@ public final class Archive<R> {
     final ArchiveEngine engine;
     private final RecordAccess<R> access;
     private final SnapshotReader reader;
+    /** The newest manifest {@link #storedState} has read; newer versions are found by probing the next name. */
+    private final AtomicReference<Manifest> newestSeen = new AtomicReference<>();
 
     private Archive(Builder<R> b) {
         DatasetCodecs codecs = new DatasetCodecs(b.spec, b.access.schema(),
@@ -127,6 +130,30 @@ public final class Archive<R> {
     public Snapshot<R> snapshot(long version) {
         return new Snapshot<>(this, version == 0 ? Manifest.empty(engine.codecs().specHash())
                 : engine.committer().read(version), reader, access);
+    }
+
+    /**
+     * The stored merge state of a key in the latest committed version, in the canonical bytes a
+     * {@link dev.onefold.gate.StreamGate} reads, or null when the key is not stored: usable as an exact-mode gate's
+     * {@link dev.onefold.gate.StoredStateLookup} ({@code archive::storedState}) when the gate's sink applies the
+     * records of acknowledged emits to this archive. See {@link Snapshot#storedState}.
+     *
+     * <p>Cost: one existence probe of the next manifest name (plus reading each manifest committed since the
+     * previous call), then {@link Snapshot#storedState}'s key-hash index probes and at most the chunk reads of
+     * chunks whose index may hold the key.
+     */
+    public byte[] storedState(byte[] key) {
+        Manifest m = newestSeen.get();
+        if (m == null) {
+            m = engine.committer().latest();
+        }
+        Storage storage = engine.chunks().storage();
+        while (storage.size(Manifest.fileName(m.version() + 1)) >= 0) {
+            m = engine.committer().read(m.version() + 1);
+        }
+        Manifest found = m;
+        newestSeen.accumulateAndGet(found, (a, b) -> a == null || b.version() > a.version() ? b : a);
+        return new Snapshot<>(this, found, reader, access).storedState(key);
     }
 
     /** The committed versions that can be opened, ascending. */

@@ -96,6 +96,21 @@ public final class Snapshot<R> {
     }
 
     /**
+     * The stored merge state of a key, tombstones included, in the canonical bytes a
+     * {@link dev.onefold.gate.StreamGate} compares (as its {@code Policy} writes them, whatever the archive's payload
+     * codec; states written under an older schema are read as the current one); null when the key is not stored
+     * in this version. {@code key} is the key's encoded bytes, as {@link dev.onefold.gate.Decision#keyBytes()}
+     * carries them.
+     *
+     * <p>Cost: one key-hash index probe per chunk (cached) and one chunk read per chunk whose index may hold the
+     * key, stopping at the first chunk that holds it.
+     */
+    public byte[] storedState(byte[] key) {
+        Object state = reader.state(manifest.partitions(), java.util.Objects.requireNonNull(key, "key"), new IoCounters());
+        return state == null ? null : archive.engine.codecs().canonicalBytes(state);
+    }
+
+    /**
      * The visible records of the key that {@code probe} carries (its other fields are ignored): empty when the
      * key is absent or deleted, several for siblings under {@code keep-all}.
      *

@@ -6,16 +6,18 @@ import java.io.IOException;
 import java.nio.ByteBuffer;
 import java.nio.channels.FileChannel;
 import java.nio.file.FileAlreadyExistsException;
+import java.nio.file.FileVisitResult;
 import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
+import java.nio.file.SimpleFileVisitor;
 import java.nio.file.StandardOpenOption;
+import java.nio.file.attribute.BasicFileAttributes;
 import java.util.ArrayList;
 import java.util.Collection;
 import java.util.List;
 import java.util.TreeSet;
 import java.util.UUID;
-import java.util.stream.Stream;
 
 /**
  * {@link Storage} over a local directory. {@link #write} writes and fsyncs the file; {@link #sync} fsyncs the
@@ -191,11 +193,25 @@ public final class LocalStorage implements Storage {
             return List.of();
         }
         TreeSet<String> out = new TreeSet<>();
-        try (Stream<Path> walk = Files.walk(dir)) {
-            walk.filter(Files::isRegularFile).forEach(f -> {
-                String n = root.relativize(f).toString().replace(f.getFileSystem().getSeparator(), "/");
-                if (n.startsWith(prefix)) {
-                    out.add(n);
+        try {
+            // a walk that tolerates files vanishing under it: other writers delete their temporary files at any
+            // moment, and a file gone before its attributes were read was not listed
+            Files.walkFileTree(dir, new SimpleFileVisitor<>() {
+                @Override
+                public FileVisitResult visitFile(Path f, BasicFileAttributes attrs) {
+                    String n = root.relativize(f).toString().replace(f.getFileSystem().getSeparator(), "/");
+                    if (attrs.isRegularFile() && n.startsWith(prefix)) {
+                        out.add(n);
+                    }
+                    return FileVisitResult.CONTINUE;
+                }
+
+                @Override
+                public FileVisitResult visitFileFailed(Path f, IOException e) throws IOException {
+                    if (e instanceof NoSuchFileException) {
+                        return FileVisitResult.CONTINUE;
+                    }
+                    throw e;
                 }
             });
         } catch (IOException e) {

@@ -106,6 +106,22 @@ public final class SnapshotReader {
 
     /** The visible records of one key (empty when absent or deleted). */
     public List<Row> lookup(List<PartitionEntry> partitions, byte[] key, IoCounters io) {
+        Object state = state(partitions, key, io);
+        if (state == null) {
+            return List.of();
+        }
+        List<Row> rows = new ArrayList<>(codecs.policy().visible(state));
+        rows.sort(Comparator.comparing((Row r) -> codecs.dataset().order(r), Arrays::compareUnsigned)
+                .thenComparing(RowCodec::encode, Arrays::compareUnsigned));
+        return rows;
+    }
+
+    /**
+     * The stored merge state of one key, tombstones included, decoded as the current schema; null when the key
+     * is not stored. Reads only chunks whose key-hash index holds the key's hash, and stops at the first match
+     * (a key is stored once per version).
+     */
+    public Object state(List<PartitionEntry> partitions, byte[] key, IoCounters io) {
         int hash = ChunkFormat.keyHash(key);
         for (PartitionEntry p : partitions) {
             for (ChunkRef c : p.chunks()) {
@@ -116,14 +132,11 @@ public final class SnapshotReader {
                 while (it.hasNext()) {
                     ChunkEntry e = it.next();
                     if (Arrays.equals(e.key(), key)) {
-                        List<Row> rows = new ArrayList<>(codecs.policy().visible(codecs.decode(c.writerId(), e.state(), c.name())));
-                        rows.sort(Comparator.comparing((Row r) -> codecs.dataset().order(r), Arrays::compareUnsigned)
-                                .thenComparing(RowCodec::encode, Arrays::compareUnsigned));
-                        return rows;
+                        return codecs.decode(c.writerId(), e.state(), c.name());
                     }
                 }
             }
         }
-        return List.of();
+        return null;
     }
 }
