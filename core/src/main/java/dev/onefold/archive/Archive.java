@@ -6,13 +6,17 @@ import dev.onefold.OnefoldException;
 import dev.onefold.Rejection;
 import dev.onefold.internal.archive.ArchiveEngine;
 import dev.onefold.internal.archive.ArchiveSettings;
+import dev.onefold.internal.archive.ChunkRef;
 import dev.onefold.internal.archive.DatasetCodecs;
+import dev.onefold.internal.archive.IoCounters;
 import dev.onefold.internal.archive.Manifest;
+import dev.onefold.internal.archive.PartitionEntry;
 import dev.onefold.internal.archive.Plan;
 import dev.onefold.internal.archive.RewriteResult;
 import dev.onefold.internal.archive.SnapshotReader;
 import dev.onefold.internal.archive.Sweeper;
 import dev.onefold.internal.archive.Verifier;
+import dev.onefold.reconcile.Digest;
 import dev.onefold.spi.PayloadCodec;
 import dev.onefold.spi.RecordAccess;
 import dev.onefold.spi.Storage;
@@ -25,6 +29,7 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Objects;
+import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.atomic.AtomicReference;
 import java.util.function.Consumer;
 
@@ -54,6 +59,8 @@ public final class Archive<R> {
     private final SnapshotReader reader;
     /** The newest manifest {@link #storedState} has read; newer versions are found by probing the next name. */
     private final AtomicReference<Manifest> newestSeen = new AtomicReference<>();
+    /** Digests, as the current schema reads them, of partitions written under an older one; by chunk names. */
+    private final ConcurrentHashMap<List<String>, Digest> digestsAsRead = new ConcurrentHashMap<>();
 
     private Archive(Builder<R> b) {
         DatasetCodecs codecs = new DatasetCodecs(b.spec, b.access.schema(),
@@ -154,6 +161,19 @@ public final class Archive<R> {
         Manifest found = m;
         newestSeen.accumulateAndGet(found, (a, b) -> a == null || b.version() > a.version() ? b : a);
         return new Snapshot<>(this, found, reader, access).storedState(key);
+    }
+
+    /**
+     * A partition's digest as the current schema reads it: the manifest's, unless some chunk was written under
+     * another writer id (an earlier schema), whose rows now read differently; that partition is read once per
+     * archive instance and its digest kept (chunk files are immutable).
+     */
+    Digest digestAsRead(PartitionEntry p) {
+        if (engine.codecs().readsAsWritten(p)) {
+            return p.digest();
+        }
+        List<String> chunks = p.chunks().stream().map(ChunkRef::name).toList();
+        return digestsAsRead.computeIfAbsent(chunks, k -> reader.digest(p, new IoCounters()));
     }
 
     /** The committed versions that can be opened, ascending. */

@@ -54,12 +54,12 @@ public final class Snapshot<R> {
         return Instant.ofEpochMilli(manifest.createdMillis());
     }
 
-    /** The partitions in name order. */
+    /** The partitions in name order, with digests as in {@link #digest()}. */
     public List<PartitionInfo> partitions() {
         List<PartitionInfo> out = new ArrayList<>();
         for (PartitionEntry p : manifest.partitions()) {
             out.add(new PartitionInfo(p.values(), p.name(), p.entries(), p.tombstones(), p.chunks().size(), p.bytes(),
-                    p.digest()));
+                    archive.digestAsRead(p)));
         }
         return out;
     }
@@ -69,12 +69,15 @@ public final class Snapshot<R> {
         return manifest.partitions().size() <= 1 || archive.engine.codecs().dataset().partitionsFollowOrder();
     }
 
-    /** The digest of the whole snapshot: the partitions' digests combined. */
+    /**
+     * The digest of the whole snapshot: the partitions' digests combined, each over the records as the current
+     * schema reads them (a partition written under an earlier schema is read once to compute it).
+     */
     public Digest digest() {
         var checks = archive.engine.codecs().spec().checks();
         Digest d = Digest.empty(checks.size());
         for (PartitionEntry p : manifest.partitions()) {
-            d = d.combine(p.digest(), checks);
+            d = d.combine(archive.digestAsRead(p), checks);
         }
         return d;
     }

@@ -46,6 +46,19 @@ public final class DatasetCodecs {
     /** XXH64 of the spec's JSON form: an archive refuses a writer with a different spec. */
     public long specHash() { return specHash; }
 
+    /**
+     * Whether every chunk of a partition was written under the current writer id, so its records read exactly as
+     * they were written (and its manifest digest is the digest of what reads return).
+     */
+    public boolean readsAsWritten(PartitionEntry partition) {
+        for (ChunkRef c : partition.chunks()) {
+            if (!c.writerId().equals(codec.writerId())) {
+                return false;
+            }
+        }
+        return true;
+    }
+
     /** The policy that reads states written under {@code writerId}. */
     public Policy<Object> policyFor(String writerId) {
         return readers.computeIfAbsent(writerId, id -> BoundDataset.bind(spec, schema, RowSerde.of(codec, id)).policy());

@@ -3,6 +3,7 @@ package dev.onefold.internal.archive;
 import dev.onefold.internal.encoding.RowCodec;
 import dev.onefold.internal.engine.BoundDataset;
 import dev.onefold.internal.merge.Policy;
+import dev.onefold.reconcile.Digest;
 import dev.onefold.record.Row;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -102,6 +103,24 @@ public final class SnapshotReader {
                 return pending.poll().row;
             }
         };
+    }
+
+    /**
+     * The digest of a partition's visible records as the current schema reads them. Equals the manifest's digest
+     * when every chunk was written under the current writer id; after a schema change, chunks written earlier
+     * read differently (defaults filled in, fields dropped or widened), and so does their digest. Cost: one read
+     * of the partition.
+     */
+    public Digest digest(PartitionEntry partition, IoCounters io) {
+        Digest.Builder digest = new Digest.Builder(codecs.spec(), codecs.schema());
+        Iterator<ChunkStore.Located> entries = chunks.entries(partition.chunks(), io);
+        while (entries.hasNext()) {
+            ChunkStore.Located l = entries.next();
+            for (Row r : codecs.policy().visible(codecs.decode(l.writerId(), l.entry().state(), l.file()))) {
+                digest.add(l.entry().key(), r);
+            }
+        }
+        return digest.build();
     }
 
     /** The visible records of one key (empty when absent or deleted). */
