@@ -42,6 +42,8 @@ public final class ChunkFormat {
     static final int PREAMBLE = 5;
     static final int TRAILER = 16;
     static final int BLOCK_BYTES = 64 << 10;
+    /** Upper bound of a key's share of the key-hash index: 2 bytes of value plus a container of its own. */
+    static final long INDEX_BYTES_PER_KEY = 10;
 
     private ChunkFormat() {}
 
@@ -57,6 +59,8 @@ public final class ChunkFormat {
         private final RoaringBitmap index = new RoaringBitmap();
         private int blockEntries;
         private int blocks;
+        private long indexBytesAtLastBlock;
+        private long keysSinceLastBlock;
         private long entries;
         private long tombstones;
         private byte[] minOrder;
@@ -77,6 +81,7 @@ public final class ChunkFormat {
                 tombstones++;
             }
             index.add(keyHash(e.key()));
+            keysSinceLastBlock++;
             if (block.length() >= BLOCK_BYTES) {
                 flushBlock();
             }
@@ -92,15 +97,21 @@ public final class ChunkFormat {
             block.reset();
             blockEntries = 0;
             blocks++;
+            // sizing the index walks all its containers (up to 65536 for hashed keys): once per block, not per key
+            indexBytesAtLastBlock = index.getLongSizeInBytes();
+            keysSinceLastBlock = 0;
         }
 
         public long entries() {
             return entries;
         }
 
-        /** Approximate size of the file so far. */
+        /**
+         * Approximate size of the file so far: the index as sized at the last block, plus at most
+         * {@value #INDEX_BYTES_PER_KEY} bytes for each key since (a key alone in its bitmap container). O(1).
+         */
         public long approximateBytes() {
-            return data.length() + block.length() + index.getSizeInBytes();
+            return data.length() + block.length() + indexBytesAtLastBlock + INDEX_BYTES_PER_KEY * keysSinceLastBlock;
         }
 
         /** The complete file and its manifest record (the name is filled in by the caller). */
