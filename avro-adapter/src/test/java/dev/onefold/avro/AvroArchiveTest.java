@@ -123,13 +123,17 @@ class AvroArchiveTest {
 
     // ---- schema evolution
 
-    @Test
-    void reopenWithV2_readsV1ChunksAsV2() {
+    /** The first batch applied under version 1, then the archive reopened under version 2. */
+    private static Archive<GenericRecord> evolvedArchive() {
         Storage storage = Storage.inMemory();
         SchemaVersions versions = SchemaVersions.first(V1, SPEC);
         archive(versions, storage).apply(firstBatch());
+        return archive(versions.register(V2), storage);
+    }
 
-        Archive<GenericRecord> evolved = archive(versions.register(V2), storage);
+    @Test
+    void reopenWithV2_readsV1ChunksAsV2() {
+        Archive<GenericRecord> evolved = evolvedArchive();
         List<GenericRecord> asV2 = firstBatch().stream().map(AvroArchiveTest::v1AsV2).toList();
         assertEquals(model(asV2), rows(evolved.snapshot(), AvroRecordAccess.of(V2)));
         GenericRecord read = evolved.snapshot().lookup(v2("k3", 0, 0, 0, "")).get(0);
@@ -141,10 +145,7 @@ class AvroArchiveTest {
 
     @Test
     void applyV2OnTopOfV1_equalsAllRecordsAsV2() {
-        Storage storage = Storage.inMemory();
-        SchemaVersions versions = SchemaVersions.first(V1, SPEC);
-        archive(versions, storage).apply(firstBatch());
-        Archive<GenericRecord> evolved = archive(versions.register(V2), storage);
+        Archive<GenericRecord> evolved = evolvedArchive();
         evolved.apply(secondBatch());
 
         List<GenericRecord> all = new ArrayList<>(firstBatch().stream().map(AvroArchiveTest::v1AsV2).toList());
@@ -174,10 +175,7 @@ class AvroArchiveTest {
     @ParameterizedTest
     @EnumSource(ContainerFiles.Compression.class)
     void export_containerFileReadByAvrosOwnReader(ContainerFiles.Compression compression) throws Exception {
-        Storage storage = Storage.inMemory();
-        SchemaVersions versions = SchemaVersions.first(V1, SPEC);
-        archive(versions, storage).apply(firstBatch());
-        Archive<GenericRecord> evolved = archive(versions.register(V2), storage);
+        Archive<GenericRecord> evolved = evolvedArchive();
         evolved.apply(secondBatch());
 
         Path file = dir.resolve("export-" + compression + ".avro");

@@ -58,12 +58,12 @@ import org.openjdk.jmh.annotations.Warmup;
 @State(Scope.Thread)
 @BenchmarkMode(Mode.AverageTime)
 @OutputTimeUnit(TimeUnit.NANOSECONDS)
-@Warmup(iterations = 3, time = 2)
+@Warmup(iterations = 5, time = 2)
 @Measurement(iterations = 5, time = 2)
 @Fork(value = 1, jvmArgsAppend = {"-Xmx2g"})
 public class AvroRewriteBenchmark {
     /** Records in the rewritten partition. */
-    public static final int RECORDS = 100_000;
+    public static final int RECORDS = 20_000;
 
     static final Schema SCHEMA = new Schema.Parser().parse("""
             {"type": "record", "name": "Bench", "namespace": "b", "fields": [
