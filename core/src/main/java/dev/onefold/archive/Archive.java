@@ -6,14 +6,18 @@ import dev.onefold.OnefoldException;
 import dev.onefold.Rejection;
 import dev.onefold.internal.archive.ArchiveEngine;
 import dev.onefold.internal.archive.ArchiveSettings;
+import dev.onefold.internal.archive.ChunkRef;
 import dev.onefold.internal.archive.DatasetCodecs;
 import dev.onefold.internal.archive.GroupedBatch;
+import dev.onefold.internal.archive.IoCounters;
 import dev.onefold.internal.archive.Manifest;
+import dev.onefold.internal.archive.PartitionEntry;
 import dev.onefold.internal.archive.Plan;
 import dev.onefold.internal.archive.RewriteResult;
 import dev.onefold.internal.archive.SnapshotReader;
 import dev.onefold.internal.archive.Sweeper;
 import dev.onefold.internal.archive.Verifier;
+import dev.onefold.reconcile.Digest;
 import dev.onefold.spi.PayloadCodec;
 import dev.onefold.spi.RecordAccess;
 import dev.onefold.spi.Storage;
@@ -26,6 +30,8 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Objects;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.atomic.AtomicReference;
 import java.util.function.Consumer;
 
 /**
@@ -53,6 +59,10 @@ public final class Archive<R> {
     final ArchiveEngine engine;
     private final RecordAccess<R> access;
     private final SnapshotReader reader;
+    /** The newest manifest {@link #storedState} has read; newer versions are found by probing the next name. */
+    private final AtomicReference<Manifest> newestSeen = new AtomicReference<>();
+    /** Digests, as the current schema reads them, of partitions written under an older one; by chunk names. */
+    private final ConcurrentHashMap<List<String>, Digest> digestsAsRead = new ConcurrentHashMap<>();
 
     private Archive(Builder<R> b) {
         DatasetCodecs codecs = new DatasetCodecs(b.spec, b.access.schema(),
@@ -130,6 +140,43 @@ public final class Archive<R> {
     public Snapshot<R> snapshot(long version) {
         return new Snapshot<>(this, version == 0 ? Manifest.empty(engine.codecs().specHash())
                 : engine.committer().read(version), reader, access);
+    }
+
+    /**
+     * The stored merge state of a key in the latest committed version, in the canonical bytes a
+     * {@link dev.onefold.gate.StreamGate} reads, or null when the key is not stored: usable as an exact-mode gate's
+     * {@link dev.onefold.gate.StoredStateLookup} ({@code archive::storedState}) when the gate's sink applies the
+     * records of acknowledged emits to this archive. See {@link Snapshot#storedState}.
+     *
+     * <p>Cost: one existence probe of the next manifest name (plus reading each manifest committed since the
+     * previous call), then {@link Snapshot#storedState}'s key-hash index probes and at most the chunk reads of
+     * chunks whose index may hold the key.
+     */
+    public byte[] storedState(byte[] key) {
+        Manifest m = newestSeen.get();
+        if (m == null) {
+            m = engine.committer().latest();
+        }
+        Storage storage = engine.chunks().storage();
+        while (storage.size(Manifest.fileName(m.version() + 1)) >= 0) {
+            m = engine.committer().read(m.version() + 1);
+        }
+        Manifest found = m;
+        newestSeen.accumulateAndGet(found, (a, b) -> a == null || b.version() > a.version() ? b : a);
+        return new Snapshot<>(this, found, reader, access).storedState(key);
+    }
+
+    /**
+     * A partition's digest as the current schema reads it: the manifest's, unless some chunk was written under
+     * another writer id (an earlier schema), whose rows now read differently; that partition is read once per
+     * archive instance and its digest kept (chunk files are immutable).
+     */
+    Digest digestAsRead(PartitionEntry p) {
+        if (engine.codecs().readsAsWritten(p)) {
+            return p.digest();
+        }
+        List<String> chunks = p.chunks().stream().map(ChunkRef::name).toList();
+        return digestsAsRead.computeIfAbsent(chunks, k -> reader.digest(p, new IoCounters()));
     }
 
     /** The committed versions that can be opened, ascending. */

@@ -54,12 +54,12 @@ public final class Snapshot<R> {
         return Instant.ofEpochMilli(manifest.createdMillis());
     }
 
-    /** The partitions in name order. */
+    /** The partitions in name order, with digests as in {@link #digest()}. */
     public List<PartitionInfo> partitions() {
         List<PartitionInfo> out = new ArrayList<>();
         for (PartitionEntry p : manifest.partitions()) {
             out.add(new PartitionInfo(p.values(), p.name(), p.entries(), p.tombstones(), p.chunks().size(), p.bytes(),
-                    p.digest()));
+                    archive.digestAsRead(p)));
         }
         return out;
     }
@@ -69,12 +69,15 @@ public final class Snapshot<R> {
         return manifest.partitions().size() <= 1 || archive.engine.codecs().dataset().partitionsFollowOrder();
     }
 
-    /** The digest of the whole snapshot: the partitions' digests combined. */
+    /**
+     * The digest of the whole snapshot: the partitions' digests combined, each over the records as the current
+     * schema reads them (a partition written under an earlier schema is read once to compute it).
+     */
     public Digest digest() {
         var checks = archive.engine.codecs().spec().checks();
         Digest d = Digest.empty(checks.size());
         for (PartitionEntry p : manifest.partitions()) {
-            d = d.combine(p.digest(), checks);
+            d = d.combine(archive.digestAsRead(p), checks);
         }
         return d;
     }
@@ -93,6 +96,21 @@ public final class Snapshot<R> {
     private Stream<R> stream(Iterator<Row> rows) {
         return StreamSupport.stream(Spliterators.spliteratorUnknownSize(rows, Spliterator.ORDERED | Spliterator.NONNULL),
                 false).map(access::fromRow);
+    }
+
+    /**
+     * The stored merge state of a key, tombstones included, in the canonical bytes a
+     * {@link dev.onefold.gate.StreamGate} compares (as its {@code Policy} writes them, whatever the archive's payload
+     * codec; states written under an older schema are read as the current one); null when the key is not stored
+     * in this version. {@code key} is the key's encoded bytes, as {@link dev.onefold.gate.Decision#keyBytes()}
+     * carries them.
+     *
+     * <p>Cost: one key-hash index probe per chunk (cached) and one chunk read per chunk whose index may hold the
+     * key, stopping at the first chunk that holds it.
+     */
+    public byte[] storedState(byte[] key) {
+        Object state = reader.state(manifest.partitions(), java.util.Objects.requireNonNull(key, "key"), new IoCounters());
+        return state == null ? null : archive.engine.codecs().canonicalBytes(state);
     }
 
     /**

@@ -16,7 +16,7 @@ import java.util.TreeSet;
 
 /**
  * A consumer service driven by a random script: reads partition logs through a gate, writes emits to a
- * {@link GateFixtures.ModelSink}, acknowledges in random batches out of order, commits the gate's safe offsets
+ * {@link GateFixtures.Sink}, acknowledges in random batches out of order, commits the gate's safe offsets
  * at random points, seeks back (redelivery) and crashes (gate, unacknowledged emits and read positions lost;
  * restart from committed offsets). Checks after every step: no committable offset passes a held or
  * unacknowledged record, the memory bounds hold, counts add up, committed offsets never move back.
@@ -24,7 +24,7 @@ import java.util.TreeSet;
 final class ConsumerSimulation {
     final DatasetSpec spec;
     final List<List<Row>> logs;
-    final GateFixtures.ModelSink sink;
+    final GateFixtures.Sink sink;
     final Random rnd;
     boolean exact = true;
     long windowKeys = 1000;
@@ -43,7 +43,7 @@ final class ConsumerSimulation {
     private final List<Decision<Row>> unacked = new ArrayList<>();
     private final List<TreeSet<Long>> outstanding = new ArrayList<>();
 
-    ConsumerSimulation(DatasetSpec spec, List<List<Row>> logs, GateFixtures.ModelSink sink, long seed) {
+    ConsumerSimulation(DatasetSpec spec, List<List<Row>> logs, GateFixtures.Sink sink, long seed) {
         this.spec = spec;
         this.logs = logs;
         this.sink = sink;
@@ -172,8 +172,8 @@ final class ConsumerSimulation {
         for (int i = 0; i < n; i++) {
             batch.add(unacked.remove(rnd.nextInt(unacked.size())));
         }
+        sink.durablyStore(batch);
         for (Decision<Row> d : batch) {
-            sink.durablyStore(d);
             outstanding.get(Integer.parseInt(d.partition().substring(1))).remove(d.offset());
         }
         if (batch.size() == 1 && rnd.nextBoolean()) {

@@ -72,11 +72,22 @@ final class GateFixtures {
     }
 
     /**
+     * What the simulated consumer service writes to: an online table written at every emit, and a store that
+     * receives acknowledged emits in batches and answers exact mode's stored-state lookups.
+     */
+    interface Sink extends StoredStateLookup {
+        void write(Decision<Row> emit);
+
+        /** Stores a batch of emits durably; the consumer acknowledges them to the gate only afterwards. */
+        void durablyStore(List<Decision<Row>> emits);
+    }
+
+    /**
      * A sink as a consumer service has one: an online table written at every emit in emission order (upsert of
      * the key's visible rows), and a merging store of acknowledged states that exact mode looks up (an archive).
      * Writes to both survive a crash of the consumer; only acknowledged states reach the merging store.
      */
-    static final class ModelSink implements StoredStateLookup {
+    static final class ModelSink implements Sink {
         final BoundDataset dataset;
         final Policy<Object> policy;
         final Map<KeyBytes, List<Row>> table = new HashMap<>();
@@ -93,8 +104,14 @@ final class GateFixtures {
             table.put(key, policy.visible(policy.read(new ByteReader(state, "seed"))));
         }
 
-        void write(Decision<Row> emit) {
+        @Override
+        public void write(Decision<Row> emit) {
             table.put(new KeyBytes(emit.keyBytes()), emit.visible());
+        }
+
+        @Override
+        public void durablyStore(List<Decision<Row>> emits) {
+            emits.forEach(this::durablyStore);
         }
 
         void durablyStore(Decision<Row> emit) {

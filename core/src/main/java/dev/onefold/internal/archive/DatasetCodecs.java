@@ -23,6 +23,7 @@ public final class DatasetCodecs {
     private final RowSchema schema;
     private final PayloadCodec codec;
     private final BoundDataset current;
+    private final Policy<Object> canonical;
     private final long specHash;
     private final ConcurrentHashMap<String, Policy<Object>> readers = new ConcurrentHashMap<>();
 
@@ -31,6 +32,7 @@ public final class DatasetCodecs {
         this.schema = schema;
         this.codec = codec;
         this.current = BoundDataset.bind(spec, schema, RowSerde.of(codec, codec.writerId()));
+        this.canonical = BoundDataset.bind(spec, schema).policy();
         this.specHash = XxHash64.hash(spec.toJson().getBytes(StandardCharsets.UTF_8));
         readers.put(codec.writerId(), current.policy());
     }
@@ -44,6 +46,19 @@ public final class DatasetCodecs {
     /** XXH64 of the spec's JSON form: an archive refuses a writer with a different spec. */
     public long specHash() { return specHash; }
 
+    /**
+     * Whether every chunk of a partition was written under the current writer id, so its records read exactly as
+     * they were written (and its manifest digest is the digest of what reads return).
+     */
+    public boolean readsAsWritten(PartitionEntry partition) {
+        for (ChunkRef c : partition.chunks()) {
+            if (!c.writerId().equals(codec.writerId())) {
+                return false;
+            }
+        }
+        return true;
+    }
+
     /** The policy that reads states written under {@code writerId}. */
     public Policy<Object> policyFor(String writerId) {
         return readers.computeIfAbsent(writerId, id -> BoundDataset.bind(spec, schema, RowSerde.of(codec, id)).policy());
@@ -52,6 +67,14 @@ public final class DatasetCodecs {
     /** Decodes an entry's state written under {@code writerId}. */
     public Object decode(String writerId, byte[] state, String file) {
         return policyFor(writerId).read(new dev.onefold.internal.bytes.ByteReader(state, file));
+    }
+
+    /**
+     * A state's bytes in the engine's canonical form (canonical rows, whatever the payload codec), the form a
+     * {@link dev.onefold.gate.StreamGate} compares and reads.
+     */
+    public byte[] canonicalBytes(Object state) {
+        return canonical.toBytes(state);
     }
 
     /** The partition values of a state: those of its anchor record. */

@@ -3,6 +3,7 @@ package dev.onefold.internal.archive;
 import dev.onefold.internal.encoding.RowCodec;
 import dev.onefold.internal.engine.BoundDataset;
 import dev.onefold.internal.merge.Policy;
+import dev.onefold.reconcile.Digest;
 import dev.onefold.record.Row;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -104,8 +105,42 @@ public final class SnapshotReader {
         };
     }
 
+    /**
+     * The digest of a partition's visible records as the current schema reads them. Equals the manifest's digest
+     * when every chunk was written under the current writer id; after a schema change, chunks written earlier
+     * read differently (defaults filled in, fields dropped or widened), and so does their digest. Cost: one read
+     * of the partition.
+     */
+    public Digest digest(PartitionEntry partition, IoCounters io) {
+        Digest.Builder digest = new Digest.Builder(codecs.spec(), codecs.schema());
+        Iterator<ChunkStore.Located> entries = chunks.entries(partition.chunks(), io);
+        while (entries.hasNext()) {
+            ChunkStore.Located l = entries.next();
+            for (Row r : codecs.policy().visible(codecs.decode(l.writerId(), l.entry().state(), l.file()))) {
+                digest.add(l.entry().key(), r);
+            }
+        }
+        return digest.build();
+    }
+
     /** The visible records of one key (empty when absent or deleted). */
     public List<Row> lookup(List<PartitionEntry> partitions, byte[] key, IoCounters io) {
+        Object state = state(partitions, key, io);
+        if (state == null) {
+            return List.of();
+        }
+        List<Row> rows = new ArrayList<>(codecs.policy().visible(state));
+        rows.sort(Comparator.comparing((Row r) -> codecs.dataset().order(r), Arrays::compareUnsigned)
+                .thenComparing(RowCodec::encode, Arrays::compareUnsigned));
+        return rows;
+    }
+
+    /**
+     * The stored merge state of one key, tombstones included, decoded as the current schema; null when the key
+     * is not stored. Reads only chunks whose key-hash index holds the key's hash, and stops at the first match
+     * (a key is stored once per version).
+     */
+    public Object state(List<PartitionEntry> partitions, byte[] key, IoCounters io) {
         int hash = ChunkFormat.keyHash(key);
         for (PartitionEntry p : partitions) {
             for (ChunkRef c : p.chunks()) {
@@ -116,14 +151,11 @@ public final class SnapshotReader {
                 while (it.hasNext()) {
                     ChunkEntry e = it.next();
                     if (Arrays.equals(e.key(), key)) {
-                        List<Row> rows = new ArrayList<>(codecs.policy().visible(codecs.decode(c.writerId(), e.state(), c.name())));
-                        rows.sort(Comparator.comparing((Row r) -> codecs.dataset().order(r), Arrays::compareUnsigned)
-                                .thenComparing(RowCodec::encode, Arrays::compareUnsigned));
-                        return rows;
+                        return codecs.decode(c.writerId(), e.state(), c.name());
                     }
                 }
             }
         }
-        return List.of();
+        return null;
     }
 }
