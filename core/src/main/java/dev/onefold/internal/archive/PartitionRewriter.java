@@ -3,7 +3,6 @@ package dev.onefold.internal.archive;
 import dev.onefold.OnefoldException;
 import dev.onefold.internal.merge.Policy;
 import dev.onefold.reconcile.Digest;
-import dev.onefold.record.Row;
 import java.nio.ByteBuffer;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -108,9 +107,7 @@ public final class PartitionRewriter {
                 dropped++;
                 return;
             }
-            for (Row r : codecs.policy().visible(state)) {
-                digest.add(e.key(), r);
-            }
+            digest.addKey(e.key(), codecs.policy().visible(state));
             entries++;
             if (e.deleted()) {
                 tombstones++;

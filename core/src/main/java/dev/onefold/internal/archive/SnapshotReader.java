@@ -3,14 +3,21 @@ package dev.onefold.internal.archive;
 import dev.onefold.internal.encoding.RowCodec;
 import dev.onefold.internal.engine.BoundDataset;
 import dev.onefold.internal.merge.Policy;
+import dev.onefold.reconcile.Digest;
+import dev.onefold.reconcile.DigestSource;
 import dev.onefold.record.Row;
+import java.nio.ByteBuffer;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.Comparator;
 import java.util.Iterator;
+import java.util.LinkedHashMap;
 import java.util.List;
+import java.util.Map;
 import java.util.NoSuchElementException;
 import java.util.PriorityQueue;
+import java.util.Set;
+import org.roaringbitmap.RoaringBitmap;
 
 /**
  * Reads the visible records of a manifest version: per partition in order, across partitions in partition-name
@@ -106,24 +113,63 @@ public final class SnapshotReader {
 
     /** The visible records of one key (empty when absent or deleted). */
     public List<Row> lookup(List<PartitionEntry> partitions, byte[] key, IoCounters io) {
-        int hash = ChunkFormat.keyHash(key);
+        ByteBuffer wanted = ByteBuffer.wrap(key);
         for (PartitionEntry p : partitions) {
-            for (ChunkRef c : p.chunks()) {
-                if (!chunks.index(c, io).contains(hash)) {
-                    continue;
-                }
-                Iterator<ChunkEntry> it = chunks.open(c, io).iterator();
-                while (it.hasNext()) {
-                    ChunkEntry e = it.next();
-                    if (Arrays.equals(e.key(), key)) {
-                        List<Row> rows = new ArrayList<>(codecs.policy().visible(codecs.decode(c.writerId(), e.state(), c.name())));
-                        rows.sort(Comparator.comparing((Row r) -> codecs.dataset().order(r), Arrays::compareUnsigned)
-                                .thenComparing(RowCodec::encode, Arrays::compareUnsigned));
-                        return rows;
-                    }
-                }
+            List<Row> rows = lookup(p, Set.of(wanted), io).get(wanted);
+            if (rows != null) {
+                return rows;
             }
         }
         return List.of();
+    }
+
+    /**
+     * The visible records of the wanted keys that one partition holds live, each key's records in order. Reads
+     * only the partition's chunks whose key-hash index holds a wanted key's hash.
+     */
+    public Map<ByteBuffer, List<Row>> lookup(PartitionEntry partition, Set<ByteBuffer> keys, IoCounters io) {
+        RoaringBitmap hashes = new RoaringBitmap();
+        for (ByteBuffer k : keys) {
+            hashes.add(ChunkFormat.keyHash(bytes(k)));
+        }
+        Map<ByteBuffer, List<Row>> out = new LinkedHashMap<>();
+        for (ChunkRef c : partition.chunks()) {
+            if (!RoaringBitmap.intersects(chunks.index(c, io), hashes)) {
+                continue;
+            }
+            Iterator<ChunkEntry> it = chunks.open(c, io).iterator();
+            while (it.hasNext()) {
+                ChunkEntry e = it.next();
+                if (!e.deleted() && keys.contains(ByteBuffer.wrap(e.key()))) {
+                    List<Row> rows = new ArrayList<>(codecs.policy().visible(codecs.decode(c.writerId(), e.state(), c.name())));
+                    rows.sort(Comparator.comparing((Row r) -> codecs.dataset().order(r), Arrays::compareUnsigned)
+                            .thenComparing(RowCodec::encode, Arrays::compareUnsigned));
+                    out.put(ByteBuffer.wrap(e.key()), rows);
+                }
+            }
+        }
+        return out;
+    }
+
+    /**
+     * Passes every live key of one partition with its {@link Digest#keyHash}, in stored order. Reads each of the
+     * partition's chunks once and decodes every state; reads no other file.
+     */
+    public void keyHashes(PartitionEntry partition, DigestSource.EntryConsumer consumer, IoCounters io) {
+        Policy<Object> policy = codecs.policy();
+        Iterator<ChunkStore.Located> entries = chunks.entries(partition.chunks(), io);
+        while (entries.hasNext()) {
+            ChunkStore.Located l = entries.next();
+            if (!l.entry().deleted()) {
+                List<Row> visible = policy.visible(codecs.decode(l.writerId(), l.entry().state(), l.file()));
+                consumer.accept(l.entry().key(), Digest.keyHash(l.entry().key(), visible));
+            }
+        }
+    }
+
+    private static byte[] bytes(ByteBuffer b) {
+        byte[] out = new byte[b.remaining()];
+        b.duplicate().get(out);
+        return out;
     }
 }

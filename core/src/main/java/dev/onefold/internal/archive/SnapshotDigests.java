@@ -1,0 +1,81 @@
+package dev.onefold.internal.archive;
+
+import dev.onefold.DatasetSpec;
+import dev.onefold.reconcile.Digest;
+import dev.onefold.reconcile.DigestSource;
+import dev.onefold.reconcile.PartitionId;
+import dev.onefold.record.Row;
+import java.nio.ByteBuffer;
+import java.util.Collections;
+import java.util.List;
+import java.util.Map;
+import java.util.Objects;
+import java.util.Set;
+import java.util.SortedMap;
+import java.util.TreeMap;
+
+/**
+ * One archive version as a {@link DigestSource}. Digests are the manifest's stored per-partition digests, which
+ * the partition rewriter builds with {@link Digest.Builder#addKey} over each stored key's visible records, so
+ * they equal the digests of any record stream folding to the same content. A partition's id is its manifest
+ * values, which are {@code BoundDataset.partition} of each key's anchor record ({@link PartitionId#WHOLE} when
+ * the dataset is unpartitioned).
+ *
+ * <h2>Cost</h2>
+ * {@link #digests()} reads nothing (the manifest was read when the snapshot was opened). {@link #entries} reads
+ * every chunk of that one partition once and decodes each state; {@link #versions} reads only that partition's
+ * chunks whose key-hash index holds a wanted key. Every other file is left alone.
+ *
+ * <p>Immutable and thread-safe (the manifest is fixed; chunk files are immutable).
+ */
+public final class SnapshotDigests implements DigestSource {
+    private final String name;
+    private final DatasetSpec spec;
+    private final SnapshotReader reader;
+    private final SortedMap<PartitionId, Digest> digests;
+    private final Map<PartitionId, PartitionEntry> partitions;
+
+    public SnapshotDigests(String name, DatasetSpec spec, Manifest manifest, SnapshotReader reader) {
+        this.name = Objects.requireNonNull(name, "name");
+        this.spec = spec;
+        this.reader = reader;
+        TreeMap<PartitionId, Digest> d = new TreeMap<>();
+        TreeMap<PartitionId, PartitionEntry> p = new TreeMap<>();
+        for (PartitionEntry e : manifest.partitions()) {
+            PartitionId id = new PartitionId(e.values());
+            d.put(id, e.digest());
+            p.put(id, e);
+        }
+        this.digests = Collections.unmodifiableSortedMap(d);
+        this.partitions = p;
+    }
+
+    @Override
+    public String name() {
+        return name;
+    }
+
+    @Override
+    public DatasetSpec spec() {
+        return spec;
+    }
+
+    @Override
+    public SortedMap<PartitionId, Digest> digests() {
+        return digests;
+    }
+
+    @Override
+    public void entries(PartitionId partition, EntryConsumer consumer) {
+        PartitionEntry p = partitions.get(partition);
+        if (p != null) {
+            reader.keyHashes(p, consumer, new IoCounters());
+        }
+    }
+
+    @Override
+    public Map<ByteBuffer, List<Row>> versions(PartitionId partition, Set<ByteBuffer> keys) {
+        PartitionEntry p = partitions.get(partition);
+        return p == null || keys.isEmpty() ? Map.of() : reader.lookup(p, keys, new IoCounters());
+    }
+}
