@@ -19,14 +19,13 @@ import java.util.Random;
  * a different order), then ten differences applied to the second one as one more version: 4 changed fields, 3
  * deletes (missing on the right) and 3 new keys (missing on the left), each in a random hour.
  *
- * <p>Records: key {@code id} = "k" + i, one version each, {@code ts} spread evenly over 30 days in ascending i (so
- * each batch touches a run of recent hours, as a feed would), hourly partitions (720 of them), a sum check on
+ * <p>Records: key {@code id} = "k" + i, one version each, {@code ts} spread evenly over {@code hours} hourly
+ * partitions in ascending i (so each batch touches a run of recent hours, as a feed would), a sum check on
  * {@code amount}. Not thread-safe; built once per benchmark trial.
  */
 final class ArchivePair {
     static final long START = 1_709_164_800_000L; // 2024-02-29T00:00Z (java.time)
     static final long HOUR = 3_600_000L;
-    static final int HOURS = 720;
     static final int CHANGED = 4;
     static final int DELETED = 3;
     static final int ADDED = 3;
@@ -46,15 +45,17 @@ final class ArchivePair {
              "checks": [{"aggregate": "sum", "field": "amount"}]}""", "reconcile benchmark spec");
 
     final int records;
+    final int hours;
     final Archive<Row> left;
     final Archive<Row> right;
     final long leftVersion;
     final long rightAgreeingVersion;
     final long rightDifferingVersion;
 
-    private ArchivePair(int records, Archive<Row> left, Archive<Row> right, long leftVersion, long rightAgreeing,
+    private ArchivePair(int records, int hours, Archive<Row> left, Archive<Row> right, long leftVersion, long rightAgreeing,
             long rightDiffering) {
         this.records = records;
+        this.hours = hours;
         this.left = left;
         this.right = right;
         this.leftVersion = leftVersion;
@@ -62,31 +63,31 @@ final class ArchivePair {
         this.rightDifferingVersion = rightDiffering;
     }
 
-    static Row record(int i, int records) {
-        long ts = START + (long) ((double) i / records * HOURS * HOUR);
+    static Row record(int i, int records, int hours) {
+        long ts = START + (long) ((double) i / records * hours * HOUR);
         return Row.of(SCHEMA, "k" + i, 1L, ts, (i * 2_654_435_761L) % 100_000, null);
     }
 
     /** Builds both archives under {@code dir}/left and {@code dir}/right. */
-    static ArchivePair build(Path dir, int records, int leftBatch, int rightBatch) {
+    static ArchivePair build(Path dir, int records, int hours, int leftBatch, int rightBatch) {
         Archive<Row> left = open(dir.resolve("left"));
         Archive<Row> right = open(dir.resolve("right"));
-        applyInBatches(left, records, leftBatch, false);
-        applyInBatches(right, records, rightBatch, true);
+        applyInBatches(left, records, hours, leftBatch, false);
+        applyInBatches(right, records, hours, rightBatch, true);
         long agreeing = right.snapshot().version();
-        right.apply(differences(records));
-        return new ArchivePair(records, left, right, left.snapshot().version(), agreeing, right.snapshot().version());
+        right.apply(differences(records, hours));
+        return new ArchivePair(records, hours, left, right, left.snapshot().version(), agreeing, right.snapshot().version());
     }
 
     private static Archive<Row> open(Path dir) {
         return Archive.builder(SPEC, RecordAccess.rows(SCHEMA)).directory(dir).spillDirectory(dir.getParent()).open();
     }
 
-    private static void applyInBatches(Archive<Row> archive, int records, int batch, boolean reversed) {
+    private static void applyInBatches(Archive<Row> archive, int records, int hours, int batch, boolean reversed) {
         for (int from = 0; from < records; from += batch) {
             List<Row> rows = new ArrayList<>(Math.min(batch, records - from));
             for (int i = from; i < Math.min(records, from + batch); i++) {
-                rows.add(record(i, records));
+                rows.add(record(i, records, hours));
             }
             if (reversed) {
                 Collections.reverse(rows);
@@ -96,7 +97,7 @@ final class ArchivePair {
     }
 
     /** The ten faults, at fixed pseudo-random keys. */
-    static List<Row> differences(int records) {
+    static List<Row> differences(int records, int hours) {
         Random random = new Random(5);
         List<Row> out = new ArrayList<>();
         List<Integer> picked = new ArrayList<>();
@@ -107,12 +108,12 @@ final class ArchivePair {
             }
         }
         for (int n = 0; n < picked.size(); n++) {
-            Row r = record(picked.get(n), records);
+            Row r = record(picked.get(n), records, hours);
             out.add(n < CHANGED ? r.with("seq", 2L).with("amount", (Long) r.get("amount") + 1)
                     : r.with("seq", 2L).with("deleted", Boolean.TRUE));
         }
         for (int n = 0; n < ADDED; n++) {
-            out.add(Row.of(SCHEMA, "extra" + n, 1L, START + random.nextInt(HOURS) * HOUR + n, 7L, null));
+            out.add(Row.of(SCHEMA, "extra" + n, 1L, START + random.nextInt(hours) * HOUR + n, 7L, null));
         }
         return out;
     }

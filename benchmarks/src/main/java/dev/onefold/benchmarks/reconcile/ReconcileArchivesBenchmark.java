@@ -26,7 +26,7 @@ import org.openjdk.jmh.annotations.Warmup;
  * differences between them? Two local-directory archives of the same records are built once per trial
  * ({@link ArchivePair}: independently, with different batch sizes and orders; setup time is printed as
  * {@code setup:} lines, not measured). {@link #compareAgreeing} opens both snapshots and compares their
- * manifest digests (720 hourly partitions); {@link #locateTenDifferences} compares against a version of the
+ * manifest digests ({@code hours} hourly partitions, 30 days by default); {@link #locateTenDifferences} compares against a version of the
  * second archive with 4 changed, 3 deleted and 3 added keys and drills down to them (sketch per differing
  * partition, then the keys' versions). Every call checks its answer and throws when it is wrong.
  *
@@ -44,6 +44,9 @@ public class ReconcileArchivesBenchmark {
     @Param({"5000000"})
     public int records;
 
+    @Param({"720"})
+    public int hours;
+
     Path dir;
     ArchivePair pair;
 
@@ -51,7 +54,7 @@ public class ReconcileArchivesBenchmark {
     public void build() throws IOException {
         dir = Files.createTempDirectory("onefold-reconcile-bench-");
         long started = System.nanoTime();
-        pair = ArchivePair.build(dir, records, 250_000, 400_000);
+        pair = ArchivePair.build(dir, records, hours, 250_000, 400_000);
         double seconds = (System.nanoTime() - started) / 1e9;
         System.out.printf("%nsetup: built two archives of %,d records each (+10 differences) in %.1f s, %,.0f records/s%n",
                 records, seconds, 2.0 * records / seconds);

@@ -17,10 +17,10 @@ class ReconcileArchivesBenchmarkTest {
 
     @Test
     void compare_smallPairAgreesThenNamesTheTenKeys(@TempDir Path dir) {
-        ArchivePair pair = ArchivePair.build(dir, 30_000, 7_000, 11_000);
+        ArchivePair pair = ArchivePair.build(dir, 6_000, 48, 1_400, 2_200);
 
         ReconciliationReport agreeing = pair.requireAgreement(pair.compareAgreeing());
-        assertEquals(ArchivePair.HOURS, agreeing.partitions().size());
+        assertEquals(48, agreeing.partitions().size());
 
         ReconciliationReport differing = pair.requireTheDifferences(pair.locateDifferences());
         TreeSet<Object> named = new TreeSet<>();
@@ -33,7 +33,7 @@ class ReconcileArchivesBenchmarkTest {
             }
         }
         TreeSet<Object> injected = new TreeSet<>();
-        ArchivePair.differences(30_000).forEach(r -> injected.add(r.get("id")));
+        ArchivePair.differences(6_000, 48).forEach(r -> injected.add(r.get("id")));
         assertEquals(injected, named);
         assertEquals(Map.of("changed", 4L, "deleted", 3L, "added", 3L), kinds.stream().collect(
                 java.util.stream.Collectors.groupingBy(k -> k, java.util.stream.Collectors.counting())));
