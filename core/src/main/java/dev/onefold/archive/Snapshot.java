@@ -83,7 +83,8 @@ public final class Snapshot<R> {
 
     /**
      * This snapshot as a reconciliation source named {@code name}: digests straight from the manifest (no file
-     * is read), drill-down reading only the chunks of the partition asked about. Partition ids are the
+     * is read; only partitions last written under an older codec writer id are re-digested from their chunks),
+     * drill-down reading only the chunks of the partition asked about. Partition ids are the
      * partitions' values ({@link dev.onefold.reconcile.PartitionId#WHOLE} when the dataset is unpartitioned), so
      * an archive and a record stream of the same content under the same spec give equal digests. Thread-safe.
      */

@@ -23,6 +23,7 @@ import dev.onefold.reconcile.RecordDigests;
 import dev.onefold.record.FieldType;
 import dev.onefold.record.Row;
 import dev.onefold.record.RowSchema;
+import dev.onefold.spi.PayloadCodec;
 import dev.onefold.spi.RecordAccess;
 import dev.onefold.spi.Storage;
 import java.math.BigDecimal;
@@ -136,6 +137,71 @@ class ArchiveDigestSourceTest {
         DigestSourceContract.verify(old, ArchiveFixtures.EVENT);
         assertEquals("archive v" + version, old.name());
         assertEquals(spec, old.spec());
+    }
+
+    private static final RowSchema EVOLVED = RowSchema.builder("event")
+            .field("id", FieldType.string())
+            .field("seq", FieldType.int64())
+            .field("ts", FieldType.timestampMillis())
+            .field("val", FieldType.int64().nullable())
+            .field("clock", FieldType.map(FieldType.int64()))
+            .field("deleted", FieldType.bool().nullable())
+            .field("note", FieldType.string().nullable())
+            .build();
+
+    private static Row evolve(Row old) {
+        return Row.of(EVOLVED, old.get("id"), old.get("seq"), old.get("ts"), old.get("val"), old.get("clock"),
+                old.get("deleted"), null);
+    }
+
+    /** Reads chunks of the original schema as rows of {@link #EVOLVED} (the new field is null). */
+    private static final class AddedFieldCodec implements PayloadCodec {
+        private final PayloadCodec older = PayloadCodec.canonical(ArchiveFixtures.EVENT);
+        private final PayloadCodec current = PayloadCodec.canonical(EVOLVED);
+
+        @Override
+        public String writerId() {
+            return current.writerId();
+        }
+
+        @Override
+        public byte[] encode(Row row) {
+            return current.encode(row);
+        }
+
+        @Override
+        public Row decode(String writerId, byte[] bytes) {
+            return writerId.equals(older.writerId()) ? evolve(older.decode(writerId, bytes)) : current.decode(writerId, bytes);
+        }
+    }
+
+    @Test
+    void digestSource_partitionsWrittenUnderAnOlderSchemaAreDigestedAsTheCurrentOneReadsThem() {
+        DatasetSpec spec = ArchiveFixtures.spec(ArchiveFixtures.Policy.LAST_WRITER, false);
+        Storage storage = Storage.inMemory();
+        List<Row> first = ArchiveFixtures.randomEvents(new Random(12), 300, 100, 4);
+        applied(spec, storage, first, 2);
+        Archive<Row> evolved = Archive.builder(spec, RecordAccess.rows(EVOLVED)).storage(storage).codec(new AddedFieldCodec())
+                .chunkTargetBytes(4096).parallelism(1).open();
+        List<Row> all = new ArrayList<>();
+        first.forEach(r -> all.add(evolve(r)));
+        List<Row> second = new ArrayList<>();
+        for (int i = 0; i < 20; i++) { // only hour 0 is rewritten under the new schema
+            second.add(Row.of(EVOLVED, "n" + i, 1L, DAY0 + i, (long) i, Map.of("a", 1L), null, "new"));
+        }
+        evolved.apply(second);
+        all.addAll(second);
+
+        Snapshot<Row> snapshot = evolved.snapshot();
+        DigestSource source = snapshot.digestSource("evolved archive");
+        SortedMap<PartitionId, Digest> expected = live(RecordDigests.ofRows("deliveries", spec, EVOLVED, all::stream,
+                RecordDigests.Mode.DELIVERIES).build().digests());
+
+        assertEquals(expected, live(source.digests()));
+        DigestSourceContract.verify(source, EVOLVED);
+        long stale = snapshot.partitions().stream()
+                .filter(p -> !p.digest().equals(source.digests().get(new PartitionId(p.values())))).count();
+        assertEquals(snapshot.partitions().size() - 1, stale, "the stored digests of untouched hours hash the older rows");
     }
 
     // --- what each call reads ---

@@ -22,7 +22,10 @@ import java.util.TreeMap;
  * the dataset is unpartitioned).
  *
  * <h2>Cost</h2>
- * {@link #digests()} reads nothing (the manifest was read when the snapshot was opened). {@link #entries} reads
+ * {@link #digests()} reads nothing (the manifest was read when the snapshot was opened), with one exception:
+ * a partition not rewritten since the payload codec's writer id changed (a schema evolution) has its digest
+ * recomputed from its chunks once, when the source is made, because the stored one hashed records of the older
+ * schema. {@link #entries} reads
  * every chunk of that one partition once and decodes each state; {@link #versions} reads only that partition's
  * chunks whose key-hash index holds a wanted key. Every other file is left alone.
  *
@@ -43,7 +46,7 @@ public final class SnapshotDigests implements DigestSource {
         TreeMap<PartitionId, PartitionEntry> p = new TreeMap<>();
         for (PartitionEntry e : manifest.partitions()) {
             PartitionId id = new PartitionId(e.values());
-            d.put(id, e.digest());
+            d.put(id, reader.currentDigest(e, new IoCounters()));
             p.put(id, e);
         }
         this.digests = Collections.unmodifiableSortedMap(d);

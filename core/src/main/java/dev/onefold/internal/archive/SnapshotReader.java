@@ -17,6 +17,7 @@ import java.util.Map;
 import java.util.NoSuchElementException;
 import java.util.PriorityQueue;
 import java.util.Set;
+import java.util.function.BiConsumer;
 import org.roaringbitmap.RoaringBitmap;
 
 /**
@@ -156,13 +157,29 @@ public final class SnapshotReader {
      * partition's chunks once and decodes every state; reads no other file.
      */
     public void keyHashes(PartitionEntry partition, DigestSource.EntryConsumer consumer, IoCounters io) {
-        Policy<Object> policy = codecs.policy();
+        forEachLive(partition, io, (key, visible) -> consumer.accept(key, Digest.keyHash(key, visible)));
+    }
+
+    /**
+     * The partition's digest under the current schema: the manifest's when every chunk was written under the
+     * current writer id (no file is read), otherwise recomputed from the chunks, because the stored digest
+     * hashed the records as the older schema shaped them.
+     */
+    public Digest currentDigest(PartitionEntry partition, IoCounters io) {
+        if (partition.chunks().stream().allMatch(c -> c.writerId().equals(codecs.writerId()))) {
+            return partition.digest();
+        }
+        Digest.Builder digest = new Digest.Builder(codecs.spec(), codecs.schema());
+        forEachLive(partition, io, digest::addKey);
+        return digest.build();
+    }
+
+    private void forEachLive(PartitionEntry partition, IoCounters io, BiConsumer<byte[], List<Row>> visitor) {
         Iterator<ChunkStore.Located> entries = chunks.entries(partition.chunks(), io);
         while (entries.hasNext()) {
             ChunkStore.Located l = entries.next();
             if (!l.entry().deleted()) {
-                List<Row> visible = policy.visible(codecs.decode(l.writerId(), l.entry().state(), l.file()));
-                consumer.accept(l.entry().key(), Digest.keyHash(l.entry().key(), visible));
+                visitor.accept(l.entry().key(), codecs.policy().visible(codecs.decode(l.writerId(), l.entry().state(), l.file())));
             }
         }
     }
