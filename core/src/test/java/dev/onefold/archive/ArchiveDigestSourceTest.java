@@ -202,6 +202,7 @@ class ArchiveDigestSourceTest {
         long stale = snapshot.partitions().stream()
                 .filter(p -> !p.digest().equals(source.digests().get(new PartitionId(p.values())))).count();
         assertEquals(snapshot.partitions().size() - 1, stale, "the stored digests of untouched hours hash the older rows");
+        assertTrue(evolved.verify().ok(), () -> evolved.verify().problems().toString());
     }
 
     // --- what each call reads ---

@@ -140,8 +140,13 @@ public final class Verifier {
             problems.add(new Problem(where, "lists " + p.entries() + " entries, " + p.tombstones() + " tombstones, "
                     + p.bytes() + " bytes; the chunks hold " + entries + ", " + tombstones + ", " + bytes));
         }
-        if (!digest.build().equals(p.digest())) {
-            problems.add(new Problem(where, "digest " + p.digest() + " differs from the chunks' " + digest.build()));
+        Digest rebuilt = digest.build();
+        // a partition not rewritten since the codec's writer id changed has a digest of the rows as the older
+        // schema shaped them, which the current codec cannot reproduce; its counts must still hold
+        boolean currentSchema = p.chunks().stream().allMatch(c -> c.writerId().equals(codecs.writerId()));
+        if (currentSchema ? !rebuilt.equals(p.digest())
+                : rebuilt.keys() != p.digest().keys() || rebuilt.records() != p.digest().records()) {
+            problems.add(new Problem(where, "digest " + p.digest() + " differs from the chunks' " + rebuilt));
         }
     }
 }
