@@ -262,6 +262,13 @@ class ArchiveDigestSourceTest {
         String directory = ManifestFormat.chunkDirectory(hour.name());
         assertTrue(read.keySet().stream().allMatch(n -> n.startsWith(directory)), read.toString());
         assertEquals(hour.bytes(), read.values().stream().mapToLong(Long::longValue).sum());
+
+        // drill-down asks twice for the same partition: the second pass is served from the kept entries
+        io.resetCounters();
+        long[] again = {0};
+        source.entries(new PartitionId(hour.values()), (key, hash) -> again[0]++);
+        assertEquals(299, again[0]);
+        assertEquals(Map.of(), chunkBytesRead(io));
     }
 
     @Test

@@ -1,6 +1,7 @@
 package dev.onefold.internal.archive;
 
 import dev.onefold.DatasetSpec;
+import dev.onefold.internal.reconcile.PackedEntries;
 import dev.onefold.reconcile.Digest;
 import dev.onefold.reconcile.DigestSource;
 import dev.onefold.reconcile.PartitionId;
@@ -27,9 +28,12 @@ import java.util.TreeMap;
  * recomputed from its chunks once, when the source is made, because the stored one hashed records of the older
  * schema. {@link #entries} reads
  * every chunk of that one partition once and decodes each state; {@link #versions} reads only that partition's
- * chunks whose key-hash index holds a wanted key. Every other file is left alone.
+ * chunks whose key-hash index holds a wanted key. Every other file is left alone. Drill-down asks for a
+ * partition's entries twice (to build its sketch, then to map decoded differences back to keys), so the entries
+ * of the last partition read are kept, packed (about key length + 9 bytes per key), and served again.
  *
- * <p>Immutable and thread-safe (the manifest is fixed; chunk files are immutable).
+ * <p>Thread-safe: the manifest is fixed, chunk files are immutable, and the kept entries are guarded by this
+ * object's lock.
  */
 public final class SnapshotDigests implements DigestSource {
     private final String name;
@@ -37,6 +41,8 @@ public final class SnapshotDigests implements DigestSource {
     private final SnapshotReader reader;
     private final SortedMap<PartitionId, Digest> digests;
     private final Map<PartitionId, PartitionEntry> partitions;
+    private PartitionId keptPartition;
+    private PackedEntries keptEntries;
 
     public SnapshotDigests(String name, DatasetSpec spec, Manifest manifest, SnapshotReader reader) {
         this.name = Objects.requireNonNull(name, "name");
@@ -72,8 +78,18 @@ public final class SnapshotDigests implements DigestSource {
     public void entries(PartitionId partition, EntryConsumer consumer) {
         PartitionEntry p = partitions.get(partition);
         if (p != null) {
-            reader.keyHashes(p, consumer, new IoCounters());
+            entriesOf(partition, p).forEach(consumer);
         }
+    }
+
+    private synchronized PackedEntries entriesOf(PartitionId id, PartitionEntry p) {
+        if (!id.equals(keptPartition)) {
+            PackedEntries packed = new PackedEntries();
+            reader.keyHashes(p, packed::add, new IoCounters());
+            keptPartition = id;
+            keptEntries = packed;
+        }
+        return keptEntries;
     }
 
     @Override
