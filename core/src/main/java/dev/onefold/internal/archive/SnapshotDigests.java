@@ -26,9 +26,8 @@ import java.util.TreeMap;
  * {@link #digests()} reads nothing (the manifest was read when the snapshot was opened), with one exception:
  * a partition not rewritten since the payload codec's writer id changed (a schema evolution) has its digest
  * recomputed from its chunks once, when the source is made, because the stored one hashed records of the older
- * schema. {@link #entries} reads
- * every chunk of that one partition once and decodes each state; {@link #versions} reads only that partition's
- * chunks whose key-hash index holds a wanted key. Every other file is left alone. Drill-down asks for a
+ * schema. {@link #entries} reads every chunk of that one partition once and decodes each state;
+ * {@link #versions} reads only that partition's chunks whose key-hash index holds a wanted key. Every other file is left alone. Drill-down asks for a
  * partition's entries twice (to build its sketch, then to map decoded differences back to keys), so the entries
  * of the last partition read are kept, packed (about key length + 9 bytes per key), and served again.
  *
