@@ -4,8 +4,10 @@ import dev.onefold.internal.archive.IoCounters;
 import dev.onefold.internal.archive.Manifest;
 import dev.onefold.internal.archive.PartitionEntry;
 import dev.onefold.internal.archive.PartitionNames;
+import dev.onefold.internal.archive.SnapshotDigests;
 import dev.onefold.internal.archive.SnapshotReader;
 import dev.onefold.reconcile.Digest;
+import dev.onefold.reconcile.DigestSource;
 import dev.onefold.record.Row;
 import dev.onefold.spi.RecordAccess;
 import java.time.Instant;
@@ -80,6 +82,17 @@ public final class Snapshot<R> {
             d = d.combine(archive.digestAsRead(p), checks);
         }
         return d;
+    }
+
+    /**
+     * This snapshot as a reconciliation source named {@code name}: digests straight from the manifest (no file
+     * is read; only partitions last written under an older codec writer id are re-digested from their chunks),
+     * drill-down reading only the chunks of the partition asked about. Partition ids are the
+     * partitions' values ({@link dev.onefold.reconcile.PartitionId#WHOLE} when the dataset is unpartitioned), so
+     * an archive and a record stream of the same content under the same spec give equal digests. Thread-safe.
+     */
+    public DigestSource digestSource(String name) {
+        return new SnapshotDigests(name, archive.engine.codecs().spec(), manifest, reader);
     }
 
     /** All visible records, partition by partition, each partition in order. Close the stream. */

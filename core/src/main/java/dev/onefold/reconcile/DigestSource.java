@@ -12,8 +12,8 @@ import java.util.SortedMap;
 /**
  * A store's content as reconciliation sees it: one {@link Digest} per partition and, for drill-down, the
  * (key, key hash) entries of one partition and the visible records of chosen keys. Implemented for record
- * streams and JDBC queries ({@link RecordDigests}, {@link JdbcDigests}) and by the archive (digests from its
- * manifest).
+ * streams and JDBC queries ({@link RecordDigests}, {@link JdbcDigests}) and by archive snapshots
+ * ({@link dev.onefold.archive.Snapshot#digestSource}, digests from the manifest).
  *
  * <p>Vocabulary. Key bytes are {@code BoundDataset.key(row)} under the source's spec. A key's visible records are
  * what a reader of the store sees for it (one record, or one per sibling; none when deleted). A key's hash is

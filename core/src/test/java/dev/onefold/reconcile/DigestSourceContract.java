@@ -13,12 +13,13 @@ import java.util.Set;
 /**
  * The {@link DigestSource} contract, written once for every implementation (record streams, JDBC, and the
  * archive when it implements the interface): per partition, the entries add up to the digest, and the versions
- * of every key rebuild both its key hash and the whole digest, aggregates included.
+ * of every key rebuild both its key hash and the whole digest, aggregates included. Public so that the archive's
+ * tests run it over archive snapshots.
  */
-final class DigestSourceContract {
+public final class DigestSourceContract {
     private DigestSourceContract() {}
 
-    static void verify(DigestSource source, dev.onefold.record.RowSchema schema) {
+    public static void verify(DigestSource source, dev.onefold.record.RowSchema schema) {
         source.digests().forEach((partition, digest) -> {
             List<byte[]> keys = new ArrayList<>();
             List<Long> hashes = new ArrayList<>();

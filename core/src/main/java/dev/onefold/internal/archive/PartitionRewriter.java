@@ -144,9 +144,7 @@ public final class PartitionRewriter {
                 return;
             }
             if (state != null) {
-                for (Row r : codecs.policy().visible(state)) {
-                    digest.add(e.key(), r);
-                }
+                digest.addKey(e.key(), codecs.policy().visible(state));
             }
             entries++;
             if (e.deleted()) {

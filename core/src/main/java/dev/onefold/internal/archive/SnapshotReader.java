@@ -4,14 +4,21 @@ import dev.onefold.internal.encoding.RowCodec;
 import dev.onefold.internal.engine.BoundDataset;
 import dev.onefold.internal.merge.Policy;
 import dev.onefold.reconcile.Digest;
+import dev.onefold.reconcile.DigestSource;
 import dev.onefold.record.Row;
+import java.nio.ByteBuffer;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.Comparator;
 import java.util.Iterator;
+import java.util.LinkedHashMap;
 import java.util.List;
+import java.util.Map;
 import java.util.NoSuchElementException;
 import java.util.PriorityQueue;
+import java.util.Set;
+import java.util.function.BiConsumer;
+import org.roaringbitmap.RoaringBitmap;
 
 /**
  * Reads the visible records of a manifest version: per partition in order, across partitions in partition-name
@@ -157,5 +164,71 @@ public final class SnapshotReader {
             }
         }
         return null;
+    }
+
+    /**
+     * The visible records of the wanted keys that one partition holds live, each key's records in order. Reads
+     * only the partition's chunks whose key-hash index holds a wanted key's hash.
+     */
+    public Map<ByteBuffer, List<Row>> lookup(PartitionEntry partition, Set<ByteBuffer> keys, IoCounters io) {
+        RoaringBitmap hashes = new RoaringBitmap();
+        for (ByteBuffer k : keys) {
+            hashes.add(ChunkFormat.keyHash(bytes(k)));
+        }
+        Map<ByteBuffer, List<Row>> out = new LinkedHashMap<>();
+        for (ChunkRef c : partition.chunks()) {
+            if (!RoaringBitmap.intersects(chunks.index(c, io), hashes)) {
+                continue;
+            }
+            Iterator<ChunkEntry> it = chunks.open(c, io).iterator();
+            while (it.hasNext()) {
+                ChunkEntry e = it.next();
+                if (!e.deleted() && keys.contains(ByteBuffer.wrap(e.key()))) {
+                    List<Row> rows = new ArrayList<>(codecs.policy().visible(codecs.decode(c.writerId(), e.state(), c.name())));
+                    rows.sort(Comparator.comparing((Row r) -> codecs.dataset().order(r), Arrays::compareUnsigned)
+                            .thenComparing(RowCodec::encode, Arrays::compareUnsigned));
+                    out.put(ByteBuffer.wrap(e.key()), rows);
+                }
+            }
+        }
+        return out;
+    }
+
+    /**
+     * Passes every live key of one partition with its {@link Digest#keyHash}, in stored order. Reads each of the
+     * partition's chunks once and decodes every state; reads no other file.
+     */
+    public void keyHashes(PartitionEntry partition, DigestSource.EntryConsumer consumer, IoCounters io) {
+        forEachLive(partition, io, (key, visible) -> consumer.accept(key, Digest.keyHash(key, visible)));
+    }
+
+    /**
+     * The partition's digest under the current schema: the manifest's when every chunk was written under the
+     * current writer id (no file is read), otherwise recomputed from the chunks, because the stored digest
+     * hashed the records as the older schema shaped them.
+     */
+    public Digest currentDigest(PartitionEntry partition, IoCounters io) {
+        if (partition.chunks().stream().allMatch(c -> c.writerId().equals(codecs.writerId()))) {
+            return partition.digest();
+        }
+        Digest.Builder digest = new Digest.Builder(codecs.spec(), codecs.schema());
+        forEachLive(partition, io, digest::addKey);
+        return digest.build();
+    }
+
+    private void forEachLive(PartitionEntry partition, IoCounters io, BiConsumer<byte[], List<Row>> visitor) {
+        Iterator<ChunkStore.Located> entries = chunks.entries(partition.chunks(), io);
+        while (entries.hasNext()) {
+            ChunkStore.Located l = entries.next();
+            if (!l.entry().deleted()) {
+                visitor.accept(l.entry().key(), codecs.policy().visible(codecs.decode(l.writerId(), l.entry().state(), l.file())));
+            }
+        }
+    }
+
+    private static byte[] bytes(ByteBuffer b) {
+        byte[] out = new byte[b.remaining()];
+        b.duplicate().get(out);
+        return out;
     }
 }

@@ -118,9 +118,7 @@ public final class Verifier {
                         problems.add(new Problem(c.name(), "key " + HexFormat.of().formatHex(e.key())
                                 + " has a deleted mark that disagrees with its state"));
                     }
-                    for (Row row : visible) {
-                        digest.add(e.key(), row);
-                    }
+                    digest.addKey(e.key(), visible);
                     hashes.add(ChunkFormat.keyHash(e.key()));
                     keys.add(new KeyedState(e.key(), c.name().getBytes(StandardCharsets.UTF_8), null));
                     entries++;
