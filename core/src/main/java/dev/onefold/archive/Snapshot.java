@@ -92,7 +92,7 @@ public final class Snapshot<R> {
      * an archive and a record stream of the same content under the same spec give equal digests. Thread-safe.
      */
     public DigestSource digestSource(String name) {
-        return new SnapshotDigests(name, archive.engine.codecs().spec(), manifest, reader);
+        return new SnapshotDigests(name, archive.engine.codecs().spec(), manifest, reader, archive::digestAsRead);
     }
 
     /** All visible records, partition by partition, each partition in order. Close the stream. */

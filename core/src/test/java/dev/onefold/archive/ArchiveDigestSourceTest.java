@@ -199,9 +199,9 @@ class ArchiveDigestSourceTest {
 
         assertEquals(expected, live(source.digests()));
         DigestSourceContract.verify(source, EVOLVED);
-        long stale = snapshot.partitions().stream()
-                .filter(p -> !p.digest().equals(source.digests().get(new PartitionId(p.values())))).count();
-        assertEquals(snapshot.partitions().size() - 1, stale, "the stored digests of untouched hours hash the older rows");
+        // the snapshot's own partition digests are the same digests as read, not the stored ones of older rows
+        assertEquals(0, snapshot.partitions().stream()
+                .filter(p -> !p.digest().equals(source.digests().get(new PartitionId(p.values())))).count());
         assertTrue(evolved.verify().ok(), () -> evolved.verify().problems().toString());
     }
 

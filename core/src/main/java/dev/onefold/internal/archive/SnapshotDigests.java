@@ -25,7 +25,7 @@ import java.util.TreeMap;
  * <h2>Cost</h2>
  * {@link #digests()} reads nothing (the manifest was read when the snapshot was opened), with one exception:
  * a partition not rewritten since the payload codec's writer id changed (a schema evolution) has its digest
- * recomputed from its chunks once, when the source is made, because the stored one hashed records of the older
+ * recomputed from its chunks once per archive instance, because the stored one hashed records of the older
  * schema. {@link #entries} reads every chunk of that one partition once and decodes each state;
  * {@link #versions} reads only that partition's chunks whose key-hash index holds a wanted key. Every other file is left alone. Drill-down asks for a
  * partition's entries twice (to build its sketch, then to map decoded differences back to keys), so the entries
@@ -43,7 +43,12 @@ public final class SnapshotDigests implements DigestSource {
     private PartitionId keptPartition;
     private PackedEntries keptEntries;
 
-    public SnapshotDigests(String name, DatasetSpec spec, Manifest manifest, SnapshotReader reader) {
+    /**
+     * @param digestOf a partition's digest as the current schema reads it (the archive's cached
+     *     {@code digestAsRead}, so older-schema partitions are read once per archive, not once per source)
+     */
+    public SnapshotDigests(String name, DatasetSpec spec, Manifest manifest, SnapshotReader reader,
+            java.util.function.Function<PartitionEntry, Digest> digestOf) {
         this.name = Objects.requireNonNull(name, "name");
         this.spec = spec;
         this.reader = reader;
@@ -51,7 +56,7 @@ public final class SnapshotDigests implements DigestSource {
         TreeMap<PartitionId, PartitionEntry> p = new TreeMap<>();
         for (PartitionEntry e : manifest.partitions()) {
             PartitionId id = new PartitionId(e.values());
-            d.put(id, reader.currentDigest(e, new IoCounters()));
+            d.put(id, digestOf.apply(e));
             p.put(id, e);
         }
         this.digests = Collections.unmodifiableSortedMap(d);

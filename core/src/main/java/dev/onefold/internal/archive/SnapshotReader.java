@@ -202,20 +202,6 @@ public final class SnapshotReader {
         forEachLive(partition, io, (key, visible) -> consumer.accept(key, Digest.keyHash(key, visible)));
     }
 
-    /**
-     * The partition's digest under the current schema: the manifest's when every chunk was written under the
-     * current writer id (no file is read), otherwise recomputed from the chunks, because the stored digest
-     * hashed the records as the older schema shaped them.
-     */
-    public Digest currentDigest(PartitionEntry partition, IoCounters io) {
-        if (partition.chunks().stream().allMatch(c -> c.writerId().equals(codecs.writerId()))) {
-            return partition.digest();
-        }
-        Digest.Builder digest = new Digest.Builder(codecs.spec(), codecs.schema());
-        forEachLive(partition, io, digest::addKey);
-        return digest.build();
-    }
-
     private void forEachLive(PartitionEntry partition, IoCounters io, BiConsumer<byte[], List<Row>> visitor) {
         Iterator<ChunkStore.Located> entries = chunks.entries(partition.chunks(), io);
         while (entries.hasNext()) {
