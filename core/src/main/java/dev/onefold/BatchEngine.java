@@ -159,10 +159,7 @@ public final class BatchEngine<R> {
 
         /** Memory the engine may hold for records before spilling (default: 40% of the maximum heap). */
         public Builder<R> memoryBudgetBytes(long bytes) {
-            if (bytes < 1024) {
-                throw OnefoldException.usage("memory budget must be at least 1024 bytes, got " + bytes);
-            }
-            this.budget = bytes;
+            this.budget = dev.onefold.internal.engine.MemoryBudget.check(bytes);
             return this;
         }
 

@@ -297,10 +297,7 @@ public final class Archive<R> {
          * it; a quarter of it (at most 64 MiB) also caches key-hash indexes.
          */
         public Builder<R> memoryBudgetBytes(long bytes) {
-            if (bytes < 1024) {
-                throw OnefoldException.usage("memory budget must be at least 1024 bytes, got " + bytes);
-            }
-            this.budget = bytes;
+            this.budget = dev.onefold.internal.engine.MemoryBudget.check(bytes);
             return this;
         }
 

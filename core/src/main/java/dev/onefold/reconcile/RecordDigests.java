@@ -348,10 +348,7 @@ public final class RecordDigests<R> implements DigestSource {
 
         /** Memory the sort may hold before spilling (default: an eighth of the heap, at most 128 MiB). */
         public Builder<R> memoryBudgetBytes(long bytes) {
-            if (bytes < 1024) {
-                throw OnefoldException.usage("memory budget must be at least 1024 bytes, got " + bytes);
-            }
-            this.budget = bytes;
+            this.budget = dev.onefold.internal.engine.MemoryBudget.check(bytes);
             return this;
         }
 
