@@ -15,7 +15,6 @@ import java.util.List;
 import java.util.Spliterator;
 import java.util.Spliterators;
 import java.util.function.UnaryOperator;
-import java.util.stream.Stream;
 import java.util.stream.StreamSupport;
 
 /**
