@@ -15,7 +15,6 @@ import java.util.List;
 import java.util.Spliterator;
 import java.util.Spliterators;
 import java.util.function.UnaryOperator;
-import java.util.stream.Stream;
 import java.util.stream.StreamSupport;
 
 /**
@@ -60,12 +59,14 @@ public final class ReconcileCommand {
         return fileSource(side, dataset, deliveries ? RecordDigests.Mode.DELIVERIES : RecordDigests.Mode.STORE);
     }
 
-    /** The latest version of an archive as a reconciliation side: its visible records, taken as they are. */
+    /**
+     * The latest version of an archive as a reconciliation side. Its digests come from the manifest, so no chunk
+     * is read unless the sides differ (or a partition was last written under an older schema version); the
+     * drill-down then reads only the chunks of the partitions that differ.
+     */
     public static DigestSource archiveSource(ArchiveDirectory archive) {
         Snapshot<InputRecord> snapshot = archive.archive().snapshot();
-        AvroDataset d = archive.dataset();
-        return RecordDigests.builder("archive " + archive.directory() + " version " + snapshot.version(), d.spec(),
-                InputRecord.access(d.access().schema()), snapshot::rows, RecordDigests.Mode.STORE).build();
+        return snapshot.digestSource("archive " + archive.directory() + " version " + snapshot.version());
     }
 
     /**

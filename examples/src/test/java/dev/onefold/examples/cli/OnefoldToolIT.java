@@ -13,9 +13,11 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
+import java.util.Collections;
 import java.util.List;
 import java.util.Map;
 import java.util.stream.Stream;
+import org.apache.avro.generic.GenericData;
 import org.apache.avro.generic.GenericRecord;
 import org.junit.jupiter.api.BeforeEach;
 import org.junit.jupiter.api.Test;
@@ -265,6 +267,88 @@ class OnefoldToolIT {
         assertEquals(1, differ.status(), differ::out);
         assertEquals("disagree", json(dir.resolve("differ.json")).get("status"));
         assertTrue(differ.out().contains("\"id\":\"" + changed.get("id") + "\",\"n\":" + changed.get("n")), differ.out());
+    }
+
+    @Test
+    void reconcile_archiveAgainstArchiveAndAgainstFile_agreeOnEqualContentAndNameTheOneDifferingKey() throws IOException {
+        List<GenericRecord> in = Deliveries.generate(11, 0, 400);
+        Deliveries.writeJsonLines(dir.resolve("all.jsonl"), in, List.of());
+        List<GenericRecord> reversed = new ArrayList<>(in);
+        Collections.reverse(reversed);
+        int half = reversed.size() / 2;
+        Deliveries.writeAvro(dir.resolve("b1.avro"), reversed.subList(0, half), ContainerFiles.Compression.SNAPPY);
+        Deliveries.writeJsonLines(dir.resolve("b2.jsonl"), reversed.subList(half, reversed.size()), List.of());
+        // the same deliveries reach archive a in one batch and archive b reversed, in two batches of two formats
+        assertEquals(0, onefold("apply", "--schema", "event.avsc", "--archive", "a", "--in", "all.jsonl").status());
+        assertEquals(0, onefold("apply", "--schema", "event.avsc", "--archive", "b", "--in", "b1.avro").status());
+        assertEquals(0, onefold("apply", "--schema", "event.avsc", "--archive", "b", "--in", "b2.jsonl").status());
+        List<GenericRecord> expected = Deliveries.expected(in);
+        Deliveries.writeJsonLines(dir.resolve("copy.jsonl"), expected, List.of());
+
+        // archive sides are digested from their manifests: with a's chunk files moved away it still agrees with b
+        Path chunks = dir.resolve("a").resolve("chunks");
+        Files.move(chunks, dir.resolve("a-chunks"));
+        ToolProcess.Result archives = onefold("reconcile", "--left", "a", "--right", "b", "--report", "aa.json");
+        Files.move(dir.resolve("a-chunks"), chunks);
+        assertEquals(0, archives.status(), () -> archives.out() + archives.err());
+        ToolProcess.Result withFile = onefold("reconcile", "--schema", "event.avsc", "--left", "b", "--right", "copy.jsonl",
+                "--report", "bf.json");
+        assertEquals(0, withFile.status(), withFile::out);
+        Map<String, Object> aa = json(dir.resolve("aa.json"));
+        Map<String, Object> bf = json(dir.resolve("bf.json"));
+        assertEquals("agree", aa.get("status"));
+        assertEquals("agree", bf.get("status"));
+        assertEquals(side(aa, "right").get("digest"), side(bf, "left").get("digest"), "archive b digested the same both times");
+        assertEquals(side(aa, "left").get("digest"), side(bf, "right").get("digest"),
+                "archive a's manifest digests equal the digests of a file holding the model's records");
+
+        // one key gets a newer version in archive b and in a copy of the file; archive a keeps the old one
+        GenericRecord old = expected.get(23);
+        GenericRecord newer = new GenericData.Record(Deliveries.SCHEMA);
+        old.getSchema().getFields().forEach(f -> newer.put(f.name(), old.get(f.name())));
+        newer.put("ver", (long) old.get("ver") + 1);
+        newer.put("value", (double) old.get("value") + 0.25);
+        Deliveries.writeJsonLines(dir.resolve("newer.jsonl"), List.of(newer), List.of());
+        assertEquals(0, onefold("apply", "--schema", "event.avsc", "--archive", "b", "--in", "newer.jsonl").status());
+        List<GenericRecord> tampered = new ArrayList<>(expected);
+        tampered.set(23, newer);
+        Deliveries.writeJsonLines(dir.resolve("tampered.jsonl"), tampered, List.of());
+        Map<String, Object> changedKey = Map.of("id", old.get("id").toString(), "n", (long) (int) old.get("n"));
+
+        ToolProcess.Result differ = onefold("reconcile", "--left", "a", "--right", "b", "--report", "ab.json");
+        assertEquals(1, differ.status(), differ::out);
+        assertTrue(differ.out().contains("\"id\":\"" + old.get("id") + "\",\"n\":" + old.get("n")), differ.out());
+        assertEquals(Map.of("content_differs", List.of(changedKey)), differingKeys(json(dir.resolve("ab.json"))));
+        ToolProcess.Result differFile = onefold("reconcile", "--schema", "event.avsc", "--left", "a", "--right",
+                "tampered.jsonl", "--report", "af.json");
+        assertEquals(1, differFile.status(), differFile::out);
+        assertEquals(Map.of("content_differs", List.of(changedKey)), differingKeys(json(dir.resolve("af.json"))));
+        ToolProcess.Result sameChange = onefold("reconcile", "--schema", "event.avsc", "--left", "b", "--right",
+                "tampered.jsonl");
+        assertEquals(0, sameChange.status(), () -> "archive b and the tampered file hold the same change: " + sameChange.out());
+    }
+
+    @SuppressWarnings("unchecked")
+    private static Map<String, Object> side(Map<String, Object> report, String side) {
+        return (Map<String, Object>) report.get(side);
+    }
+
+    /** The keys a report's drill-downs name, by kind (missing_left, missing_right, content_differs); empty kinds left out. */
+    @SuppressWarnings("unchecked")
+    private static Map<String, List<Object>> differingKeys(Map<String, Object> report) {
+        Map<String, List<Object>> out = new java.util.TreeMap<>();
+        for (Object p : (List<Object>) report.get("partitions")) {
+            Map<String, Object> drillDown = (Map<String, Object>) ((Map<String, Object>) p).get("drill_down");
+            if (drillDown == null) {
+                continue;
+            }
+            for (String kind : List.of("missing_left", "missing_right", "content_differs")) {
+                for (Object k : (List<Object>) ((Map<String, Object>) drillDown.get(kind)).get("keys")) {
+                    out.computeIfAbsent(kind, x -> new ArrayList<>()).add(((Map<String, Object>) k).get("key"));
+                }
+            }
+        }
+        return out;
     }
 
     @Test
