@@ -59,12 +59,14 @@ public class IncrementalApplyBenchmark {
         @Param({"500000", "2000000", "5000000"})
         public long archiveRecords;
 
+        /** Records per hourly partition; tests lower it to run the benchmark on a tiny archive. */
+        int perHour = ApplyWorkload.PER_HOUR;
         ApplyWorkload workload;
         List<Row> batch;
         Path root;
 
         void prepare() throws IOException {
-            workload = new ApplyWorkload(archiveRecords);
+            workload = new ApplyWorkload(archiveRecords, perHour);
             batch = workload.batch();
             root = Files.createTempDirectory("onefold-apply-bench-");
         }

@@ -7,6 +7,8 @@ import dev.onefold.archive.ApplyReport;
 import dev.onefold.archive.Archive;
 import dev.onefold.record.Row;
 import dev.onefold.spi.RecordAccess;
+import java.io.IOException;
+import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
@@ -50,5 +52,34 @@ class IncrementalApplyBenchmarkTest {
         assertEquals(written, expected.size());
         assertEquals(expected, actual, "same records in the same order");
         assertTrue(archive.verify().ok());
+    }
+
+    @Test
+    void benchmarkMethods_applyAndRecomputeThenResetToTheBuiltArchive() throws IOException {
+        IncrementalApplyBenchmark bench = new IncrementalApplyBenchmark();
+        IncrementalApplyBenchmark.OnefoldArchive onefold = new IncrementalApplyBenchmark.OnefoldArchive();
+        IncrementalApplyBenchmark.HandWrittenArchive hand = new IncrementalApplyBenchmark.HandWrittenArchive();
+        for (IncrementalApplyBenchmark.Workload w : List.of(onefold, hand)) {
+            w.archiveRecords = 85 * 200;
+            w.perHour = 200;
+        }
+        onefold.stablePartitions = true;
+        try {
+            onefold.build();
+            hand.build();
+            long built = onefold.archive.snapshot().version();
+            for (int call = 0; call < 2; call++) {
+                assertEquals(43, bench.onefoldApply(onefold).partitionsTouched(), "call " + call);
+                onefold.reset();
+                assertEquals(built, onefold.archive.snapshot().version(), "reset restores the built version");
+                long written = bench.handWrittenFullRecompute(hand);
+                assertTrue(written > 85 * 200, "the recompute writes the whole history plus the batch's new keys");
+                hand.reset();
+            }
+        } finally {
+            onefold.delete();
+            hand.delete();
+        }
+        assertTrue(!Files.exists(onefold.root) && !Files.exists(hand.root), "both directories deleted");
     }
 }

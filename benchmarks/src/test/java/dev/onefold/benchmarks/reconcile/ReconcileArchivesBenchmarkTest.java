@@ -1,9 +1,11 @@
 package dev.onefold.benchmarks.reconcile;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 
 import dev.onefold.reconcile.ReconciliationReport;
+import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
@@ -39,5 +41,24 @@ class ReconcileArchivesBenchmarkTest {
                 java.util.stream.Collectors.groupingBy(k -> k, java.util.stream.Collectors.counting())));
         assertThrows(IllegalStateException.class, () -> pair.requireAgreement(differing));
         assertThrows(IllegalStateException.class, () -> pair.requireTheDifferences(agreeing));
+    }
+
+    @Test
+    void benchmarkMethods_checkTheirAnswersOnATinyPairAndCleanUp() throws Exception {
+        ReconcileArchivesBenchmark bench = new ReconcileArchivesBenchmark();
+        bench.records = 6_000;
+        bench.hours = 48;
+        bench.build();
+        try {
+            assertEquals(48, bench.compareAgreeing().partitions().size());
+            assertEquals(10, bench.locateTenDifferences().partitions().stream()
+                    .filter(p -> p.drillDown() != null)
+                    .mapToInt(p -> p.drillDown().contentDiffers().size() + p.drillDown().missingLeft().size()
+                            + p.drillDown().missingRight().size())
+                    .sum());
+        } finally {
+            bench.delete();
+        }
+        assertFalse(Files.exists(bench.dir));
     }
 }

@@ -39,6 +39,26 @@ class SpillBenchmarkTest {
     }
 
     @Test
+    void benchmarkMethods_inMemoryDoesNotSpillAndSpilledSpillsTenTimesTheBudget() throws IOException {
+        SpillBenchmark bench = new SpillBenchmark();
+        // ten times SMALL at eight times the budget of the test above: still at least 10x the budget
+        bench.records = 240_000;
+        bench.budgetMiB = 1;
+        bench.setUp();
+        try {
+            SpillBenchmark.Runs runs = new SpillBenchmark.Runs();
+            long keys = Workload.of(bench.records).keys();
+            assertEquals(keys, bench.inMemory(runs));
+            assertEquals(0, runs.spilledRuns);
+            runs.reset();
+            assertEquals(keys, bench.spilled(runs));
+            assertTrue(runs.spilledRuns >= 20, "spilled " + runs.spilledRuns + " runs");
+        } finally {
+            bench.tearDown();
+        }
+    }
+
+    @Test
     void orderCheck_rejectsRepeatsWrongWinnersAndMissingKeys() {
         List<Row> rows = Workload.of(12).rows();
         Workload w = Workload.of(12);
