@@ -152,41 +152,28 @@ public final class HashConsolidator {
         int groups = firsts.length;
         int chunks = useCores ? Runtime.getRuntime().availableProcessors() * 4 : 1;
         MergeCounts[] perChunkCounts = new MergeCounts[chunks];
-        long[][] perChunkKeys = new long[chunks][];
+        KeyResolver[] perChunkKeys = new KeyResolver[chunks];
         List<List<OrderedRow>> perChunkRows = new ArrayList<>(java.util.Collections.nCopies(chunks, null));
         IntStream chunkRange = IntStream.range(0, chunks);
         (chunks > 1 ? chunkRange.parallel() : chunkRange).forEach(c -> {
             MergeCounts local = new MergeCounts();
-            long siblings = 0;
-            long deleted = 0;
+            KeyResolver resolver = new KeyResolver(dataset);
             int from = (int) ((long) groups * c / chunks);
             int to = (int) ((long) groups * (c + 1) / chunks);
             List<OrderedRow> out = new ArrayList<>(to - from);
             for (int k = from; k < to; k++) {
                 int first = firsts[k];
-                Object state = foldGroup(first, next, states, local);
-                if (policy.hasSiblings(state)) {
-                    siblings++;
-                }
-                List<Row> visible = policy.visible(state);
-                if (visible.isEmpty()) {
-                    deleted++;
-                }
-                for (Row r : visible) {
-                    out.add(new OrderedRow(dataset.order(r, keys[first]), r, null));
-                }
+                resolver.resolve(keys[first], foldGroup(first, next, states, local), out::add);
             }
             perChunkCounts[c] = local;
-            perChunkKeys[c] = new long[] {siblings, deleted};
+            perChunkKeys[c] = resolver;
             perChunkRows.set(c, out);
         });
-        long siblings = 0;
-        long deleted = 0;
+        KeyResolver totals = new KeyResolver(dataset);
         int total = 0;
         for (int c = 0; c < chunks; c++) {
             counts.add(perChunkCounts[c]);
-            siblings += perChunkKeys[c][0];
-            deleted += perChunkKeys[c][1];
+            totals.add(perChunkKeys[c]);
             total += perChunkRows.get(c).size();
         }
         OrderedRow[] all = new OrderedRow[total];
@@ -197,7 +184,7 @@ public final class HashConsolidator {
             }
         }
         OrderedRow.sort(all);
-        return new Ordered(all, groups, siblings, deleted);
+        return new Ordered(all, totals.keys, totals.keysWithSiblings, totals.deletedKeys);
     }
 
     private void reportRejections(String[] reasons, Consumer<Rejection> rejects) {

@@ -18,23 +18,13 @@ public final class KeyedState {
     };
 
     private final byte[] key;
-    private byte[] stateBytes;
+    private final byte[] stateBytes;
     private Object state;
-    private final Policy<Object> policy;
 
     public KeyedState(byte[] key, byte[] stateBytes, Object state) {
-        this(key, stateBytes, state, null);
-    }
-
-    /** A state whose bytes are computed by {@code policy} only if someone asks for them. */
-    public KeyedState(byte[] key, byte[] stateBytes, Object state, Policy<Object> policy) {
-        if (stateBytes == null && (state == null || policy == null)) {
-            throw new IllegalArgumentException("a keyed state needs its bytes, or its state and policy");
-        }
         this.key = key;
         this.stateBytes = stateBytes;
         this.state = state;
-        this.policy = policy;
     }
 
     public byte[] key() {
@@ -42,9 +32,6 @@ public final class KeyedState {
     }
 
     public byte[] stateBytes() {
-        if (stateBytes == null) {
-            stateBytes = policy.toBytes(state);
-        }
         return stateBytes;
     }
 

@@ -8,7 +8,6 @@ import dev.onefold.record.Row;
 import dev.onefold.record.RowSchema;
 import java.nio.file.Path;
 import java.util.Iterator;
-import java.util.List;
 import java.util.NoSuchElementException;
 
 /**
@@ -21,14 +20,13 @@ public final class Publisher implements AutoCloseable {
     private final BoundDataset dataset;
     private final Policy<Object> policy;
     private final ExternalSorter<OrderedRow> sorter;
-    private long keys;
-    private long keysWithSiblings;
-    private long deletedKeys;
+    private final KeyResolver resolver;
     private long out;
 
     public Publisher(BoundDataset dataset, long budgetBytes, Path tempDir, boolean parallel) {
         this.dataset = dataset;
         this.policy = dataset.policy();
+        this.resolver = new KeyResolver(dataset);
         this.sorter = new ExternalSorter<>(OrderedRow.ORDER, codec(dataset.schema()), budgetBytes, tempDir, parallel);
     }
 
@@ -55,24 +53,15 @@ public final class Publisher implements AutoCloseable {
     }
 
     public void add(KeyedState ks) {
-        Object state = ks.state(policy);
-        keys++;
-        if (policy.hasSiblings(state)) {
-            keysWithSiblings++;
-        }
-        List<Row> rows = policy.visible(state);
-        if (rows.isEmpty()) {
-            deletedKeys++;
-        }
-        for (Row r : rows) {
-            sorter.add(new OrderedRow(dataset.order(r, ks.key()), r, null));
+        resolver.resolve(ks.key(), ks.state(policy), row -> {
+            sorter.add(row);
             out++;
-        }
+        });
     }
 
-    public long keys() { return keys; }
-    public long keysWithSiblings() { return keysWithSiblings; }
-    public long deletedKeys() { return deletedKeys; }
+    public long keys() { return resolver.keys; }
+    public long keysWithSiblings() { return resolver.keysWithSiblings; }
+    public long deletedKeys() { return resolver.deletedKeys; }
     public long out() { return out; }
     public int spilledRuns() { return sorter.spilledRuns(); }
 
