@@ -5,7 +5,6 @@ import dev.onefold.internal.engine.CloseableIterator;
 import dev.onefold.internal.engine.Consolidator;
 import dev.onefold.internal.engine.HashConsolidator;
 import dev.onefold.internal.engine.KeyedState;
-import dev.onefold.internal.engine.OrderedRow;
 import dev.onefold.internal.merge.MergeCounts;
 import dev.onefold.internal.engine.Publisher;
 import dev.onefold.record.Row;
@@ -114,8 +113,8 @@ public final class BatchEngine<R> {
             }
             if (spilling == null) {
                 HashConsolidator.Ordered ordered = fast.foldAndOrder(rejects);
-                for (OrderedRow r : ordered.rows()) {
-                    survivors.accept(access.fromRow(r.row()));
+                for (Row r : ordered.rows()) {
+                    survivors.accept(access.fromRow(r));
                 }
                 return report(in, fast.accepted(), fast.rejected(), fast.counts(), ordered.keys(),
                         ordered.keysWithSiblings(), ordered.deletedKeys(), ordered.rows().length, 0);

@@ -69,7 +69,57 @@ class ConvergencePropertiesTest {
         BatchEngine<Row> tiny = BatchEngine.builder(Fixtures.spec(policy), dev.onefold.spi.RecordAccess.rows(Fixtures.SCHEMA))
                 .memoryBudgetBytes(2048).build();
         BatchResult<Row> spilled = tiny.dedupe(stream);
-        assertEquals(BatchEngine.forRows(Fixtures.spec(policy), Fixtures.SCHEMA).dedupe(stream).survivors(), spilled.survivors());
+        BatchResult<Row> inMemory = BatchEngine.forRows(Fixtures.spec(policy), Fixtures.SCHEMA).dedupe(stream);
+        assertEquals(inMemory.survivors(), spilled.survivors());
+        assertEquals(withoutRuns(inMemory.report()), withoutRuns(spilled.report()), "counts of the two paths");
+    }
+
+    /**
+     * The in-memory path reads records in blocks on a background worker, groups keys in parallel shards and, for
+     * last-writer, decides keys by version alone unless versions tie; the spilling path sorts and folds every
+     * record's state. Large batches crossing block boundaries, with many keys, tied versions, tombstones and
+     * records of a foreign schema (rejected before they reach a block) must come out the same on both paths and
+     * single-threaded: survivors, rejections in input order, and every count.
+     */
+    @Property(tries = 60)
+    void dedupe_largeBatchAgreesAcrossParallelSerialAndSpilledRuns(@ForAll PolicyCase policy,
+            @ForAll("deliveries") Delivery d, @ForAll long seed) {
+        java.util.Random random = new java.util.Random(seed);
+        List<Row> stream = new ArrayList<>();
+        d.batches().forEach(stream::addAll);
+        List<Row> big = new ArrayList<>();
+        int copies = 20_000 / stream.size() + 1;
+        for (int c = 0; c < copies; c++) {
+            for (Row r : stream) {
+                // a thousand key spaces (a prime, so copies of one record spread over them) many times over
+                big.add(r.with("k", r.get("k") + "#" + (c % 1009)));
+            }
+        }
+        java.util.Collections.shuffle(big, random);
+        dev.onefold.record.RowSchema foreign = dev.onefold.record.RowSchema.builder("foreign")
+                .field("k", dev.onefold.record.FieldType.string()).build();
+        for (int i = 0; i < 5; i++) {
+            big.add(random.nextInt(big.size()), Row.of(foreign, "stray" + i));
+        }
+        dev.onefold.spi.RecordAccess<Row> access = dev.onefold.spi.RecordAccess.rows(Fixtures.SCHEMA);
+        BatchResult<Row> parallel = BatchEngine.builder(Fixtures.spec(policy), access).parallel(true).build().dedupe(big);
+        BatchResult<Row> serial = BatchEngine.builder(Fixtures.spec(policy), access).parallel(false).build().dedupe(big);
+        BatchResult<Row> spilled = BatchEngine.builder(Fixtures.spec(policy), access).memoryBudgetBytes(256 * 1024)
+                .build().dedupe(big);
+        assertTrue(spilled.report().spilledRuns() > 0, "the small budget spills");
+        assertEquals(0, parallel.report().spilledRuns());
+        assertEquals(5, parallel.report().rejected());
+        for (BatchResult<Row> other : List.of(serial, spilled)) {
+            assertEquals(parallel.survivors(), other.survivors());
+            assertEquals(withoutRuns(parallel.report()), withoutRuns(other.report()));
+            assertEquals(parallel.rejections().stream().map(r -> r.position() + ": " + r.reason()).toList(),
+                    other.rejections().stream().map(r -> r.position() + ": " + r.reason()).toList());
+        }
+    }
+
+    private static BatchReport withoutRuns(BatchReport r) {
+        return new BatchReport(r.in(), r.accepted(), r.rejected(), r.duplicates(), r.superseded(), r.conflicts(),
+                r.keys(), r.keysWithSiblings(), r.tombstonedKeys(), r.out(), 0, r.lawsMissing());
     }
 
     // --- the semilattice laws on states of one key

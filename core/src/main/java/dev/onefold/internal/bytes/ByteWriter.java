@@ -29,6 +29,23 @@ public final class ByteWriter {
         }
     }
 
+    /**
+     * Makes room for {@code extra} more bytes and returns the array to write them into, from index
+     * {@link #length()}; {@link #advance} then counts what was written.
+     */
+    public byte[] reserve(int extra) {
+        ensure(extra);
+        return buf;
+    }
+
+    /** Counts {@code n} bytes written directly into the array {@link #reserve} returned. */
+    public void advance(int n) {
+        if (n < 0 || len + n > buf.length) {
+            throw new IllegalArgumentException("cannot advance " + n + " bytes from " + len + " in " + buf.length);
+        }
+        len += n;
+    }
+
     public ByteWriter reset() {
         len = 0;
         return this;

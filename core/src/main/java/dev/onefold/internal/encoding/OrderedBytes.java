@@ -71,7 +71,7 @@ public final class OrderedBytes {
                 long bits = Double.doubleToLongBits(d);
                 out.writeLong(bits < 0 ? ~bits : bits ^ Long.MIN_VALUE);
             }
-            case STRING -> writeEscaped(out, ((String) value).getBytes(StandardCharsets.UTF_8));
+            case STRING -> writeString(out, (String) value);
             case BYTES -> {
                 ByteBuffer b = ((ByteBuffer) value).duplicate();
                 byte[] a = new byte[b.remaining()];
@@ -86,6 +86,27 @@ public final class OrderedBytes {
             case DECIMAL -> writeDecimal(out, ((BigDecimal) value).unscaledValue());
             default -> throw new IllegalArgumentException(kind + " values have no order");
         }
+    }
+
+    /**
+     * A string's escaped UTF-8 bytes. ASCII text without NUL, the common case, is copied char by char straight
+     * into the buffer: the bytes {@code getBytes(UTF_8)} would give, without the intermediate array.
+     */
+    private static void writeString(ByteWriter out, String s) {
+        int n = s.length();
+        byte[] a = out.reserve(n);
+        int at = out.length();
+        for (int i = 0; i < n; i++) {
+            char ch = s.charAt(i);
+            if (ch == 0 || ch >= 0x80) {
+                // NUL needs escaping and other characters need UTF-8 encoding: take the general path
+                writeEscaped(out, s.getBytes(StandardCharsets.UTF_8));
+                return;
+            }
+            a[at + i] = (byte) ch;
+        }
+        out.advance(n);
+        out.write(0).write(1);
     }
 
     private static void writeEscaped(ByteWriter out, byte[] a) {

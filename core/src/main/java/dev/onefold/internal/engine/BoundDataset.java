@@ -232,7 +232,13 @@ public final class BoundDataset {
     /** One reusable buffer per thread: key and order bytes are built there and copied out once. */
     private static final ThreadLocal<ByteWriter> SCRATCH = ThreadLocal.withInitial(() -> new ByteWriter(256));
 
-    private void writeKey(ByteWriter w, Row row) {
+    /**
+     * Appends the key bytes of a row to {@code w}.
+     *
+     * @throws OnefoldException (INVALID_RECORD) when a key field is null and null keys are not allowed; part of
+     *     the key may have been written by then
+     */
+    public void writeKey(ByteWriter w, Row row) {
         for (FieldPath p : key) {
             Object v = p.read(row);
             if (v == null && !spec.allowNullKey()) {
@@ -250,11 +256,16 @@ public final class BoundDataset {
     /** The order bytes of a row whose key bytes are already known. */
     public byte[] order(Row row, byte[] key) {
         ByteWriter w = SCRATCH.get().reset();
+        writeOrderFields(w, row);
+        w.write(key);
+        return w.toByteArray();
+    }
+
+    /** Appends the order fields of a row (flipped when descending) to {@code w}; the key bytes follow them. */
+    public void writeOrderFields(ByteWriter w, Row row) {
         for (int i = 0; i < order.length; i++) {
             OrderedBytes.write(w, order[i].type().nullable(), order[i].read(row), descending[i]);
         }
-        w.write(key);
-        return w.toByteArray();
     }
 
     /** Whether the dataset is partitioned. */

@@ -2,48 +2,61 @@ package dev.onefold.internal.engine;
 
 import dev.onefold.OnefoldException;
 import dev.onefold.Rejection;
+import dev.onefold.internal.bytes.ByteWriter;
 import dev.onefold.internal.hash.XxHash64;
+import dev.onefold.internal.merge.LastWriterPolicy;
 import dev.onefold.internal.merge.MergeCounts;
 import dev.onefold.internal.merge.Policy;
 import dev.onefold.record.Row;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
+import java.util.concurrent.ForkJoinPool;
+import java.util.concurrent.ForkJoinTask;
 import java.util.function.Consumer;
 import java.util.stream.IntStream;
 
 /**
- * Stage one of a batch that fits in memory: the fast counterpart of {@link Consolidator}. Rows are buffered;
- * then keys and states are extracted in parallel, records are grouped by key in an open-addressing hash table,
- * and each key with several records is folded in the same canonical order as {@link Consolidator} (ascending
- * state bytes, exact duplicates skipped), so the folded states and the counts are identical to the sorting
- * path. Keys delivered once, the common case, are never encoded beyond their key and order bytes; the visible
- * rows are then ordered exactly as {@link Publisher} orders them.
+ * Stage one of a batch that fits in memory: the fast counterpart of {@link Consolidator}. Records are buffered
+ * in blocks of {@value #BLOCK}; as each block fills, a worker reads every record's order and key bytes into the
+ * block's byte slab, hashes the key and reads the version (last-writer) or lifts the merge state (other
+ * policies), while the caller goes on buffering the next block. Then records are grouped by key in
+ * open-addressing hash tables, one per shard of the key hashes, in parallel; each key with several records is
+ * folded in the same canonical order as {@link Consolidator} (ascending state bytes, exact duplicates skipped),
+ * so the folded states and the counts are identical to the sorting path; and the visible rows are ordered as
+ * {@link Publisher} orders them.
+ *
+ * <p>Last-writer keys need no states at all: a key whose versions are distinct is decided by the versions
+ * alone (the greatest wins and every other record is superseded, exactly what the fold gives), and its visible
+ * row's order bytes are the ones read with the record. Only keys whose versions tie are lifted and folded.
  *
  * <h2>Invariants</h2>
  * One folded state per key, equal byte for byte to what {@link Consolidator} produces for the same records;
- * rejections are reported in input order. States come out in no particular order (the publisher sorts).
+ * rejections, including records that could not be read at all, are reported in input order.
  *
  * <h2>Complexity</h2>
- * O(n) expected for grouping plus O(m log m) per key with m records; extraction and folding use all cores when
- * parallel. Memory: the buffered rows plus about 40 bytes per record; {@link #add} refuses rows once the
- * estimate passes the budget so the caller can switch to the spilling path. Not thread-safe; one per batch.
+ * O(n) expected for grouping plus O(m log m) per key with m records, and a radix sort of the visible rows.
+ * Memory: the buffered rows plus about 60 bytes per record (its columns) and its order and key bytes;
+ * {@link #add} refuses rows once the estimate passes the budget so the caller can switch to the spilling path.
+ * Not thread-safe; one per batch.
  */
 public final class HashConsolidator {
+    private static final int BLOCK_BITS = 13;
+    /** Records per block; a block is the unit of background extraction. */
+    private static final int BLOCK = 1 << BLOCK_BITS;
+    /** Below this many records the work stays on the caller's thread: forking would cost more than it saves. */
     private static final int PARALLEL_THRESHOLD = 4096;
-
-    /** A record the engine could not even read, held so rejections come out in input order. */
-    private record Early(String source, long position, String reason, Object original) {}
+    /** What {@link #add} counts per record beyond the row itself: its columns and slab bytes. */
+    private static final long COLUMN_BYTES = 120;
 
     private final BoundDataset dataset;
     private final Policy<Object> policy;
+    /** Set for the last-writer policy, whose keys fold by version alone unless versions tie. */
+    private final LastWriterPolicy lastWriter;
     private final long budget;
     private final boolean parallel;
-    private Row[] rows = new Row[1024];
-    private long[] positions = new long[1024];
-    private Object[] originals = new Object[1024];
-    private String[] sources = new String[1024];
-    private final List<Early> early = new ArrayList<>();
+    private final List<Block> blocks = new ArrayList<>();
+    private Block filling;
     private int n;
     private long bytes;
     private final MergeCounts counts = new MergeCounts();
@@ -53,6 +66,8 @@ public final class HashConsolidator {
     public HashConsolidator(BoundDataset dataset, long budgetBytes, boolean parallel) {
         this.dataset = dataset;
         this.policy = dataset.policy();
+        Object built = policy;
+        this.lastWriter = built instanceof LastWriterPolicy lw ? lw : null;
         this.budget = budgetBytes;
         this.parallel = parallel;
     }
@@ -63,48 +78,72 @@ public final class HashConsolidator {
      * @return false, without buffering, when the row would exceed the memory budget
      */
     public boolean add(Row row, String source, long position, Object original) {
-        long size = RowSizes.estimate(row) + 120;
+        long size = RowSizes.estimate(row) + COLUMN_BYTES;
         if (bytes + size > budget && n > 0) {
             return false;
         }
-        if (n == rows.length) {
-            int cap = n * 2;
-            rows = Arrays.copyOf(rows, cap);
-            positions = Arrays.copyOf(positions, cap);
-            originals = Arrays.copyOf(originals, cap);
-            sources = Arrays.copyOf(sources, cap);
-        }
-        rows[n] = row;
-        positions[n] = position;
-        originals[n] = original;
-        sources[n] = source;
-        n++;
+        slot().put(row, source, position, original, null);
         bytes += size;
         return true;
     }
 
     /** Records a record that could not be read as a row; reported in input order with the others. */
     public void reject(String source, long position, String reason, Object original) {
-        early.add(new Early(source, position, reason, original));
+        slot().put(null, source, position, original, reason);
+    }
+
+    /** The block with room for the next record, sealing the previous one when it is full. */
+    private Block slot() {
+        if (filling == null || filling.size == BLOCK) {
+            if (filling != null) {
+                seal(filling);
+            }
+            filling = new Block(lastWriter != null);
+            blocks.add(filling);
+        }
+        n++;
+        return filling;
+    }
+
+    /** Starts the extraction of a full block on another core, or runs it here when work must stay serial. */
+    private void seal(Block b) {
+        if (parallel) {
+            b.extraction = ForkJoinPool.commonPool().submit((Runnable) b::extract);
+        } else {
+            b.extract();
+        }
+    }
+
+    /** Waits for every block's extraction; the last block, never sealed, is extracted here. */
+    private Block[] extracted() {
+        Block[] all = blocks.toArray(new Block[0]);
+        for (Block b : all) {
+            if (b.extraction != null) {
+                b.extraction.join();
+            } else if (!b.extracted) {
+                b.extract();
+            }
+        }
+        return all;
     }
 
     /** Moves everything buffered into a spilling consolidator, in input order, when the budget is exceeded. */
     public void transferTo(Consolidator target, Consumer<Rejection> rejects) {
-        int e = 0;
-        for (int i = 0; i < n; i++) {
-            while (e < early.size() && early.get(e).position() < positions[i]) {
-                Early x = early.get(e++);
-                target.reject(x.source(), x.position(), x.reason(), x.original(), rejects);
+        for (Block b : blocks) {
+            if (b.extraction != null) {
+                // the worker still reads this block's rows; its columns are not needed, but its failures are
+                b.extraction.join();
             }
-            target.add(rows[i], sources[i], positions[i], originals[i], rejects);
-            rows[i] = null;
-            originals[i] = null;
+            for (int j = 0; j < b.size; j++) {
+                if (b.rows[j] == null) {
+                    target.reject(b.sources[j], b.positions[j], b.reasons[j], b.originals[j], rejects);
+                } else {
+                    target.add(b.rows[j], b.sources[j], b.positions[j], b.originals[j], rejects);
+                }
+            }
         }
-        for (; e < early.size(); e++) {
-            Early x = early.get(e);
-            target.reject(x.source(), x.position(), x.reason(), x.original(), rejects);
-        }
-        early.clear();
+        blocks.clear();
+        filling = null;
         n = 0;
         bytes = 0;
     }
@@ -122,163 +161,333 @@ public final class HashConsolidator {
     }
 
     /** What the in-memory path produced: visible rows in order, and the key counts. */
-    public record Ordered(OrderedRow[] rows, long keys, long keysWithSiblings, long deletedKeys) {}
+    public record Ordered(Row[] rows, long keys, long keysWithSiblings, long deletedKeys) {}
 
     /**
-     * Extracts, groups and folds, then resolves each key to its visible rows and sorts them by the order;
+     * Groups and folds what was buffered, then resolves each key to its visible rows and sorts them by the order;
      * reports rejections in input order. The result equals what {@link Publisher} makes of the same states.
      */
     public Ordered foldAndOrder(Consumer<Rejection> rejects) {
-        byte[][] keys = new byte[n][];
-        Object[] states = new Object[n];
-        String[] reasons = new String[n];
-        boolean useCores = parallel && n >= PARALLEL_THRESHOLD;
-        IntStream range = IntStream.range(0, n);
-        (useCores ? range.parallel() : range).forEach(i -> {
+        Block[] all = extracted();
+        reportRejections(all, rejects);
+        int shards = parallel && n >= PARALLEL_THRESHOLD
+                ? Integer.highestOneBit(Runtime.getRuntime().availableProcessors()) : 1;
+        Shard[] done = new Shard[shards];
+        int[] next = new int[n];
+        IntStream shardRange = IntStream.range(0, shards);
+        (shards > 1 ? shardRange.parallel() : shardRange).forEach(s -> done[s] = new Shard(all, next, s, shards).run());
+        KeyResolver totals = new KeyResolver(dataset);
+        VisibleRows[] visible = new VisibleRows[shards];
+        for (int s = 0; s < shards; s++) {
+            counts.add(done[s].counts);
+            totals.add(done[s].resolver);
+            visible[s] = done[s].visible;
+        }
+        return new Ordered(VisibleRows.sorted(visible), totals.keys, totals.keysWithSiblings, totals.deletedKeys);
+    }
+
+    private void reportRejections(Block[] all, Consumer<Rejection> rejects) {
+        for (Block b : all) {
+            for (int j = 0; j < b.size; j++) {
+                if (b.reasons[j] != null) {
+                    rejected++;
+                    rejects.accept(new Rejection(b.sources[j], b.positions[j], b.reasons[j], b.originals[j]));
+                } else {
+                    accepted++;
+                }
+            }
+        }
+    }
+
+    /**
+     * Up to {@value #BLOCK} buffered records in input order and what extraction reads from each: its order
+     * bytes (order fields, then key bytes) in the block's slab, where its key bytes start, the first eight order
+     * bytes as a number, the key's hash, the reason when it is rejected, and either its version and delete flag
+     * (last-writer) or its lifted state (other policies). Only last-writer writes order fields here: its visible
+     * rows are input rows, while the other policies' are built by merging and get their order bytes then. A
+     * record that could not be read has no row and arrives with its reason. Arrays grow with the block, so a
+     * small batch costs little.
+     */
+    private final class Block {
+        private final ByteWriter slab = new ByteWriter(256);
+        private final boolean byVersion;
+        Row[] rows = new Row[16];
+        long[] positions = new long[16];
+        Object[] originals = new Object[16];
+        String[] sources = new String[16];
+        String[] reasons = new String[16];
+        int[] orderStart;
+        int[] keyStart;
+        int[] end;
+        long[] hashes;
+        long[] prefixes;
+        long[] versions;
+        boolean[] deletes;
+        Object[] states;
+        byte[] slabBytes;
+        int size;
+        boolean extracted;
+        ForkJoinTask<?> extraction;
+
+        Block(boolean byVersion) {
+            this.byVersion = byVersion;
+        }
+
+        void put(Row row, String source, long position, Object original, String reason) {
+            if (size == rows.length) {
+                int cap = Math.min(BLOCK, size * 4);
+                rows = Arrays.copyOf(rows, cap);
+                positions = Arrays.copyOf(positions, cap);
+                originals = Arrays.copyOf(originals, cap);
+                sources = Arrays.copyOf(sources, cap);
+                reasons = Arrays.copyOf(reasons, cap);
+            }
+            rows[size] = row;
+            positions[size] = position;
+            originals[size] = original;
+            sources[size] = source;
+            reasons[size] = reason;
+            size++;
+        }
+
+        /** Reads every record's columns; a record whose key, version or state is unusable gets its reason. */
+        void extract() {
+            orderStart = new int[size];
+            keyStart = new int[size];
+            end = new int[size];
+            hashes = new long[size];
+            if (byVersion) {
+                prefixes = new long[size];
+                versions = new long[size];
+                deletes = new boolean[size];
+            } else {
+                states = new Object[size];
+            }
+            for (int j = 0; j < size; j++) {
+                if (rows[j] != null) {
+                    extract(j);
+                }
+            }
+            slabBytes = slab.array();
+            extracted = true;
+        }
+
+        private void extract(int j) {
+            Row row = rows[j];
+            int start = slab.length();
+            int key;
             try {
-                keys[i] = dataset.key(rows[i]);
-                states[i] = policy.lift(rows[i]);
+                if (byVersion) {
+                    dataset.writeOrderFields(slab, row);
+                    key = slab.length();
+                    dataset.writeKey(slab, row);
+                    versions[j] = lastWriter.version(row);
+                    deletes[j] = lastWriter.isTombstone(row);
+                } else {
+                    key = start;
+                    dataset.writeKey(slab, row);
+                    states[j] = policy.lift(row);
+                }
             } catch (OnefoldException e) {
                 if (e.kind() != OnefoldException.Kind.INVALID_RECORD) {
                     throw e;
                 }
-                reasons[i] = e.getMessage();
+                reasons[j] = e.getMessage();
+                // a rejected record's partial bytes stay in the slab unreferenced
+                return;
             }
-        });
-        reportRejections(reasons, rejects);
-
-        int[] next = new int[n];
-        int[] firsts = group(keys, reasons, next);
-        int groups = firsts.length;
-        int chunks = useCores ? Runtime.getRuntime().availableProcessors() * 4 : 1;
-        MergeCounts[] perChunkCounts = new MergeCounts[chunks];
-        KeyResolver[] perChunkKeys = new KeyResolver[chunks];
-        List<List<OrderedRow>> perChunkRows = new ArrayList<>(java.util.Collections.nCopies(chunks, null));
-        IntStream chunkRange = IntStream.range(0, chunks);
-        (chunks > 1 ? chunkRange.parallel() : chunkRange).forEach(c -> {
-            MergeCounts local = new MergeCounts();
-            KeyResolver resolver = new KeyResolver(dataset);
-            int from = (int) ((long) groups * c / chunks);
-            int to = (int) ((long) groups * (c + 1) / chunks);
-            List<OrderedRow> out = new ArrayList<>(to - from);
-            for (int k = from; k < to; k++) {
-                int first = firsts[k];
-                resolver.resolve(keys[first], foldGroup(first, next, states, local), out::add);
+            byte[] array = slab.array();
+            int stop = slab.length();
+            orderStart[j] = start;
+            keyStart[j] = key;
+            end[j] = stop;
+            hashes[j] = XxHash64.hash(array, key, stop - key, 0);
+            if (byVersion) {
+                prefixes[j] = PrefixRadixSort.prefix(array, start, stop);
             }
-            perChunkCounts[c] = local;
-            perChunkKeys[c] = resolver;
-            perChunkRows.set(c, out);
-        });
-        KeyResolver totals = new KeyResolver(dataset);
-        int total = 0;
-        for (int c = 0; c < chunks; c++) {
-            counts.add(perChunkCounts[c]);
-            totals.add(perChunkKeys[c]);
-            total += perChunkRows.get(c).size();
-        }
-        OrderedRow[] all = new OrderedRow[total];
-        int at = 0;
-        for (List<OrderedRow> part : perChunkRows) {
-            for (OrderedRow r : part) {
-                all[at++] = r;
-            }
-        }
-        OrderedRow.sort(all);
-        return new Ordered(all, totals.keys, totals.keysWithSiblings, totals.deletedKeys);
-    }
-
-    private void reportRejections(String[] reasons, Consumer<Rejection> rejects) {
-        int e = 0;
-        for (int i = 0; i < n; i++) {
-            while (e < early.size() && early.get(e).position() < positions[i]) {
-                Early x = early.get(e++);
-                rejected++;
-                rejects.accept(new Rejection(x.source(), x.position(), x.reason(), x.original()));
-            }
-            if (reasons[i] != null) {
-                rejected++;
-                rejects.accept(new Rejection(sources[i], positions[i], reasons[i], originals[i]));
-            } else {
-                accepted++;
-            }
-        }
-        for (; e < early.size(); e++) {
-            Early x = early.get(e);
-            rejected++;
-            rejects.accept(new Rejection(x.source(), x.position(), x.reason(), x.original()));
         }
     }
 
     /**
-     * Groups records by key with open addressing on the key hash; records of one key are chained through
-     * {@code next} (-1 ends a chain). Returns the first record of each key.
+     * The keys whose hash falls in one shard: grouped in an open-addressing table, folded, resolved to visible
+     * rows with their order bytes. Shards split keys, never records of one key, so they run in parallel and
+     * their counts add up. Keys are resolved in the order of their first record, so rows are read roughly in
+     * the order they were buffered, which is kind to the caches. Record {@code i} is record
+     * {@code i % BLOCK} of block {@code i / BLOCK}.
      */
-    private int[] group(byte[][] keys, String[] reasons, int[] next) {
-        int cap = Integer.highestOneBit(Math.max(16, n * 2 - 1)) << 1;
-        int mask = cap - 1;
-        int[] table = new int[cap];
-        int[] tail = new int[cap];
-        Arrays.fill(table, -1);
-        int groups = 0;
-        for (int i = 0; i < n; i++) {
-            if (reasons[i] != null) {
-                continue;
-            }
-            next[i] = -1;
-            int slot = (int) XxHash64.hash(keys[i], 0, keys[i].length, 0) & mask;
-            while (true) {
-                int h = table[slot];
-                if (h < 0) {
-                    table[slot] = i;
-                    tail[slot] = i;
-                    groups++;
-                    break;
-                }
-                if (Arrays.equals(keys[h], keys[i])) {
-                    next[tail[slot]] = i;
-                    tail[slot] = i;
-                    break;
-                }
-                slot = (slot + 1) & mask;
-            }
-        }
-        int[] firsts = new int[groups];
-        int g = 0;
-        for (int h : table) {
-            if (h >= 0) {
-                firsts[g++] = h;
-            }
-        }
-        return firsts;
-    }
+    private final class Shard {
+        private final Block[] all;
+        private final int shard;
+        private final int shardBits;
+        final MergeCounts counts = new MergeCounts();
+        final KeyResolver resolver = new KeyResolver(dataset);
+        final VisibleRows visible;
+        /**
+         * Chains the records of one key: {@code next[i]} is the next record's index + 1, 0 ends the chain. Shared
+         * by all shards; each writes only the entries of its own records.
+         */
+        private final int[] next;
+        private long[] versionScratch = new long[8];
 
-    /** Folds one key's states in ascending state-byte order, exactly as {@link Consolidator} does. */
-    private Object foldGroup(int first, int[] next, Object[] states, MergeCounts local) {
-        if (next[first] < 0) {
-            return states[first];
+        Shard(Block[] all, int[] next, int shard, int shards) {
+            this.all = all;
+            this.next = next;
+            this.shard = shard;
+            this.shardBits = Integer.numberOfTrailingZeros(shards);
+            this.visible = new VisibleRows(n / shards + 16);
         }
-        List<byte[]> bytes = new ArrayList<>();
-        List<Object> members = new ArrayList<>();
-        for (int i = first; i >= 0; i = next[i]) {
-            bytes.add(policy.toBytes(states[i]));
-            members.add(states[i]);
+
+        private boolean mine(long hash) {
+            return shardBits == 0 || (int) (hash >>> (64 - shardBits)) == shard;
         }
-        Integer[] byBytes = new Integer[members.size()];
-        for (int m = 0; m < byBytes.length; m++) {
-            byBytes[m] = m;
+
+        private Block block(int i) {
+            return all[i >>> BLOCK_BITS];
         }
-        Arrays.sort(byBytes, (x, y) -> Arrays.compareUnsigned(bytes.get(x), bytes.get(y)));
-        Object acc = members.get(byBytes[0]);
-        byte[] last = bytes.get(byBytes[0]);
-        for (int m = 1; m < byBytes.length; m++) {
-            byte[] b = bytes.get(byBytes[m]);
-            if (Arrays.equals(b, last)) {
-                local.duplicates++;
-                continue;
+
+        private boolean sameKey(int i, int k) {
+            Block a = block(i);
+            Block b = block(k);
+            int x = i & (BLOCK - 1);
+            int y = k & (BLOCK - 1);
+            return a.hashes[x] == b.hashes[y]
+                    && Arrays.equals(a.slabBytes, a.keyStart[x], a.end[x], b.slabBytes, b.keyStart[y], b.end[y]);
+        }
+
+        Shard run() {
+            int cap = Integer.highestOneBit(Math.max(16, (n >> shardBits) * 2 - 1)) << 1;
+            int mask = cap - 1;
+            // a slot holds the upper half of the key's hash and its first record's index + 1, so most probes are
+            // settled without touching the records, and a fresh table is empty without filling; tails hold
+            // the last record of the slot's chain, index + 1
+            long[] table = new long[cap];
+            int[] tail = new int[cap];
+            int[] firsts = new int[Math.max(16, (n >> shardBits) + (n >> (shardBits + 3)))];
+            int keys = 0;
+            for (int bi = 0; bi < all.length; bi++) {
+                Block b = all[bi];
+                for (int j = 0; j < b.size; j++) {
+                    long hash = b.hashes[j];
+                    if (b.reasons[j] != null || !mine(hash)) {
+                        continue;
+                    }
+                    int i = (bi << BLOCK_BITS) | j;
+                    long upper = hash & 0xFFFFFFFF00000000L;
+                    int slot = (int) hash & mask;
+                    while (true) {
+                        long entry = table[slot];
+                        if (entry == 0) {
+                            table[slot] = upper | (i + 1);
+                            tail[slot] = i + 1;
+                            if (keys == firsts.length) {
+                                firsts = Arrays.copyOf(firsts, keys + (keys >> 1));
+                            }
+                            firsts[keys++] = i;
+                            break;
+                        }
+                        if ((entry & 0xFFFFFFFF00000000L) == upper && sameKey((int) entry - 1, i)) {
+                            next[tail[slot] - 1] = i + 1;
+                            tail[slot] = i + 1;
+                            break;
+                        }
+                        slot = (slot + 1) & mask;
+                    }
+                }
             }
-            last = b;
-            acc = policy.merge(acc, members.get(byBytes[m]), local);
+            for (int k = 0; k < keys; k++) {
+                resolveKey(firsts[k]);
+            }
+            return this;
         }
-        return acc;
+
+        private void resolveKey(int first) {
+            if (lastWriter != null) {
+                int winner = next[first] == 0 ? first : lastWriterByVersion(first);
+                if (winner >= 0) {
+                    Block w = block(winner);
+                    int j = winner & (BLOCK - 1);
+                    resolver.count(w.deletes[j]);
+                    if (!w.deletes[j]) {
+                        visible.add(w.rows[j], w.slabBytes, w.orderStart[j], w.end[j], w.prefixes[j]);
+                    }
+                    return;
+                }
+            }
+            Block f = block(first);
+            int j = first & (BLOCK - 1);
+            for (Row r : resolver.visible(foldGroup(first))) {
+                visible.add(dataset, r, f.slabBytes, f.keyStart[j], f.end[j]);
+            }
+        }
+
+        /**
+         * The winner of a last-writer key whose versions are all distinct: the greatest version, every other
+         * record superseded, exactly what folding the states would give; -1 when two versions tie, because
+         * then only the states' content bytes can tell duplicates from conflicts.
+         */
+        private int lastWriterByVersion(int first) {
+            int m = 0;
+            int winner = first;
+            for (int i = first; i >= 0; i = next[i] - 1) {
+                if (m == versionScratch.length) {
+                    versionScratch = Arrays.copyOf(versionScratch, m * 2);
+                }
+                long v = version(i);
+                versionScratch[m++] = v;
+                if (v > version(winner)) {
+                    winner = i;
+                }
+            }
+            Arrays.sort(versionScratch, 0, m);
+            for (int k = 1; k < m; k++) {
+                if (versionScratch[k] == versionScratch[k - 1]) {
+                    return -1;
+                }
+            }
+            counts.superseded += m - 1;
+            return winner;
+        }
+
+        /** Folds one key's states in ascending state-byte order, exactly as {@link Consolidator} does. */
+        private Object foldGroup(int first) {
+            if (next[first] == 0) {
+                return state(first);
+            }
+            List<byte[]> bytes = new ArrayList<>();
+            List<Object> members = new ArrayList<>();
+            for (int i = first; i >= 0; i = next[i] - 1) {
+                Object state = state(i);
+                bytes.add(policy.toBytes(state));
+                members.add(state);
+            }
+            Integer[] byBytes = new Integer[members.size()];
+            for (int m = 0; m < byBytes.length; m++) {
+                byBytes[m] = m;
+            }
+            Arrays.sort(byBytes, (x, y) -> Arrays.compareUnsigned(bytes.get(x), bytes.get(y)));
+            Object acc = members.get(byBytes[0]);
+            byte[] last = bytes.get(byBytes[0]);
+            for (int m = 1; m < byBytes.length; m++) {
+                byte[] b = bytes.get(byBytes[m]);
+                if (Arrays.equals(b, last)) {
+                    counts.duplicates++;
+                    continue;
+                }
+                last = b;
+                acc = policy.merge(acc, members.get(byBytes[m]), counts);
+            }
+            return acc;
+        }
+
+        private long version(int i) {
+            return block(i).versions[i & (BLOCK - 1)];
+        }
+
+        /** Record i's state: lifted during extraction, or now for a last-writer key whose versions tie. */
+        private Object state(int i) {
+            Block b = block(i);
+            int j = i & (BLOCK - 1);
+            return b.states != null ? b.states[j] : policy.lift(b.rows[j]);
+        }
     }
 }

@@ -6,9 +6,9 @@ import java.util.List;
 import java.util.function.Consumer;
 
 /**
- * Turns one folded key state into its visible rows with their order bytes, counting keys, keys with siblings
- * and deleted keys on the way. The in-memory and the spilling path both resolve keys here, so their rows and
- * counts are the same. Not thread-safe: one per worker, summed with {@link #add}.
+ * Turns one folded key state into its visible rows, counting keys, keys with siblings and deleted keys on the
+ * way. The in-memory and the spilling path both resolve keys here, so their rows and counts are the same. Not
+ * thread-safe: one per worker, summed with {@link #add}.
  */
 final class KeyResolver {
     private final BoundDataset dataset;
@@ -22,16 +22,27 @@ final class KeyResolver {
         this.policy = dataset.policy();
     }
 
-    void resolve(byte[] key, Object state, Consumer<OrderedRow> out) {
-        keys++;
+    /** Counts one key and returns the rows a reader sees for it (empty when deleted). */
+    List<Row> visible(Object state) {
         if (policy.hasSiblings(state)) {
             keysWithSiblings++;
         }
         List<Row> rows = policy.visible(state);
-        if (rows.isEmpty()) {
+        count(rows.isEmpty());
+        return rows;
+    }
+
+    /** Counts one key whose single winner is known without a state (a last-writer key with distinct versions). */
+    void count(boolean deleted) {
+        keys++;
+        if (deleted) {
             deletedKeys++;
         }
-        for (Row r : rows) {
+    }
+
+    /** Counts one key and hands its visible rows, with their order bytes, to {@code out}. */
+    void resolve(byte[] key, Object state, Consumer<OrderedRow> out) {
+        for (Row r : visible(state)) {
             out.accept(new OrderedRow(dataset.order(r, key), r, null));
         }
     }

@@ -60,11 +60,26 @@ public final class LastWriterPolicy implements Policy<LastWriterPolicy.State> {
 
     @Override
     public State lift(Row record) {
+        return new State(version(record), record, isTombstone(record), null);
+    }
+
+    /**
+     * The version of a record: what {@link #lift} keeps, read without building a state, so a batch kernel can
+     * fold records by version alone and lift only keys whose versions tie.
+     *
+     * @throws OnefoldException (INVALID_RECORD) when the version is null
+     */
+    public long version(Row record) {
         Object v = version.read(record);
         if (v == null) {
             throw OnefoldException.record("version field '" + version.path() + "' is null");
         }
-        return new State(((Number) v).longValue(), record, Tombstones.isSet(tombstone, record), null);
+        return ((Number) v).longValue();
+    }
+
+    /** Whether the record is a delete (its tombstone field is true). */
+    public boolean isTombstone(Row record) {
+        return Tombstones.isSet(tombstone, record);
     }
 
     @Override

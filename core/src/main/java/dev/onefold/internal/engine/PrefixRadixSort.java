@@ -1,0 +1,69 @@
+package dev.onefold.internal.engine;
+
+import java.util.Arrays;
+
+/**
+ * Sorts unsigned 64-bit order prefixes with an index riding along: a least-significant-digit radix sort, one
+ * pass per byte, skipping passes whose byte is the same for every prefix. Both ways the engine orders visible
+ * rows (in memory and before a spill) sort by prefix here first and compare the full order bytes only inside
+ * runs of equal prefixes.
+ *
+ * <p>Linear in the number of prefixes (at most eight passes) and it touches only primitive arrays, which is
+ * what makes it several times faster than a comparison sort of objects. Stateless and thread-safe; uses two
+ * scratch arrays of the input's size.
+ */
+final class PrefixRadixSort {
+    private PrefixRadixSort() {}
+
+    /** Prefixes in ascending unsigned order, and for each the position it had in the input. */
+    record Sorted(long[] prefixes, int[] index) {}
+
+    /** The first eight bytes of {@code bytes[from, to)} as a big-endian number, padded with zero bytes. */
+    static long prefix(byte[] bytes, int from, int to) {
+        long p = 0;
+        for (int i = 0; i < 8; i++) {
+            int at = from + i;
+            p = (p << 8) | (at < to ? bytes[at] & 0xFF : 0);
+        }
+        return p;
+    }
+
+    /** Sorts the first {@code n} prefixes; the input array is not modified. */
+    static Sorted sort(long[] input, int n) {
+        long[] keys = Arrays.copyOf(input, n);
+        int[] idx = new int[n];
+        for (int i = 0; i < n; i++) {
+            idx[i] = i;
+        }
+        if (n < 2) {
+            return new Sorted(keys, idx);
+        }
+        long[] keys2 = new long[n];
+        int[] idx2 = new int[n];
+        int[] count = new int[257];
+        for (int shift = 0; shift < 64; shift += 8) {
+            Arrays.fill(count, 0);
+            for (int i = 0; i < n; i++) {
+                count[(int) ((keys[i] >>> shift) & 0xFF) + 1]++;
+            }
+            if (count[(int) ((keys[0] >>> shift) & 0xFF) + 1] == n) {
+                continue;
+            }
+            for (int b = 0; b < 256; b++) {
+                count[b + 1] += count[b];
+            }
+            for (int i = 0; i < n; i++) {
+                int dst = count[(int) ((keys[i] >>> shift) & 0xFF)]++;
+                keys2[dst] = keys[i];
+                idx2[dst] = idx[i];
+            }
+            long[] tk = keys;
+            keys = keys2;
+            keys2 = tk;
+            int[] ti = idx;
+            idx = idx2;
+            idx2 = ti;
+        }
+        return new Sorted(keys, idx);
+    }
+}
