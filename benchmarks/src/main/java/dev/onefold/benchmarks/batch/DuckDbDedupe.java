@@ -5,7 +5,9 @@ import java.sql.DriverManager;
 import java.sql.ResultSet;
 import java.sql.SQLException;
 import java.sql.Statement;
+import java.util.ArrayList;
 import java.util.List;
+import java.util.Map;
 import org.duckdb.DuckDBAppender;
 import org.duckdb.DuckDBConnection;
 
@@ -89,14 +91,16 @@ public final class DuckDbDedupe implements AutoCloseable {
         };
     }
 
-    /** Runs the policy's query over the loaded table and feeds every output row, in order, to the checksum. */
-    public void dedupe(MergeCase policy, OutputChecksum out) throws SQLException {
+    /** Runs the policy's query over the loaded table and reads every output row, in order, into a reading. */
+    public List<Reading> dedupe(MergeCase policy) throws SQLException {
+        List<Reading> out = new ArrayList<>();
         try (Statement s = connection.createStatement(); ResultSet rs = s.executeQuery(query(policy))) {
             while (rs.next()) {
-                out.add(rs.getString(1), rs.getInt(2), rs.getLong(3), rs.getLong(4), rs.getDouble(5), rs.getString(6),
-                        rs.getLong(7), rs.getLong(8));
+                out.add(new Reading(rs.getString(1), rs.getInt(2), rs.getLong(3), rs.getLong(4), rs.getDouble(5),
+                        rs.getString(6), Map.of("w1", rs.getLong(7), "w2", rs.getLong(8))));
             }
         }
+        return out;
     }
 
     @Override

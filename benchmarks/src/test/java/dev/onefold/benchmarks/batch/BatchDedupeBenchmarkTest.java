@@ -101,16 +101,24 @@ class BatchDedupeBenchmarkTest {
         BatchDedupeBenchmark bench = new BatchDedupeBenchmark();
         BatchDedupeBenchmark.OnefoldInput onefold = new BatchDedupeBenchmark.OnefoldInput();
         onefold.prepare(policy, TINY);
-        assertEquals(known.value(), bench.onefold(onefold), "onefold");
+        assertEquals(TINY.keys(), bench.onefold(onefold), "onefold");
+        OutputChecksum fromOnefold = new OutputChecksum();
+        onefold.output.forEach(fromOnefold::add);
+        assertEquals(known.value(), fromOnefold.value(), "onefold");
+        onefold.verify();
 
         BatchDedupeBenchmark.HandWrittenInput hand = new BatchDedupeBenchmark.HandWrittenInput();
         hand.prepare(policy, TINY);
-        assertEquals(known.value(), bench.handWritten(hand), "hand-written");
+        assertEquals(TINY.keys(), bench.handWritten(hand), "hand-written");
+        assertEquals(known.value(), checksum(hand.output), "hand-written");
+        hand.verify();
 
         BatchDedupeBenchmark.LoadedTable table = new BatchDedupeBenchmark.LoadedTable();
         table.prepare(policy, TINY);
         try {
-            assertEquals(known.value(), bench.duckdbQuery(table), "DuckDB");
+            assertEquals(TINY.keys(), bench.duckdbQuery(table), "DuckDB");
+            assertEquals(known.value(), checksum(table.output), "DuckDB");
+            table.verify();
         } finally {
             table.tearDown();
         }
@@ -133,8 +141,15 @@ class BatchDedupeBenchmarkTest {
         BatchDedupeBenchmark.OnefoldInput in = new BatchDedupeBenchmark.OnefoldInput();
         in.prepare(MergeCase.LAST_WRITER, TINY);
         in.expected ^= 1;
-        IllegalStateException e = assertThrows(IllegalStateException.class, () -> new BatchDedupeBenchmark().onefold(in));
+        new BatchDedupeBenchmark().onefold(in);
+        IllegalStateException e = assertThrows(IllegalStateException.class, in::verify);
         assertTrue(e.getMessage().contains("timing does not count"), e.getMessage());
+    }
+
+    private static long checksum(List<Reading> readings) {
+        OutputChecksum c = new OutputChecksum();
+        readings.forEach(c::add);
+        return c.value();
     }
 
     @Test
