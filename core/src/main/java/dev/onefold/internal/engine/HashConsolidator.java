@@ -98,7 +98,8 @@ public final class HashConsolidator {
             if (filling != null) {
                 seal(filling);
             }
-            filling = new Block(lastWriter != null);
+            // a batch that fills one block is large: later blocks start at full size instead of growing
+            filling = new Block(lastWriter != null, blocks.isEmpty() ? 16 : BLOCK);
             blocks.add(filling);
         }
         n++;
@@ -183,7 +184,7 @@ public final class HashConsolidator {
             totals.add(done[s].resolver);
             visible[s] = done[s].visible;
         }
-        return new Ordered(VisibleRows.sorted(visible), totals.keys, totals.keysWithSiblings, totals.deletedKeys);
+        return new Ordered(VisibleRows.merge(visible), totals.keys, totals.keysWithSiblings, totals.deletedKeys);
     }
 
     private void reportRejections(Block[] all, Consumer<Rejection> rejects) {
@@ -209,13 +210,13 @@ public final class HashConsolidator {
      * small batch costs little.
      */
     private final class Block {
-        private final ByteWriter slab = new ByteWriter(256);
+        private final ByteWriter slab;
         private final boolean byVersion;
-        Row[] rows = new Row[16];
-        long[] positions = new long[16];
-        Object[] originals = new Object[16];
-        String[] sources = new String[16];
-        String[] reasons = new String[16];
+        Row[] rows;
+        long[] positions;
+        Object[] originals;
+        String[] sources;
+        String[] reasons;
         int[] orderStart;
         int[] keyStart;
         int[] end;
@@ -229,8 +230,14 @@ public final class HashConsolidator {
         boolean extracted;
         ForkJoinTask<?> extraction;
 
-        Block(boolean byVersion) {
+        Block(boolean byVersion, int capacity) {
             this.byVersion = byVersion;
+            slab = new ByteWriter(capacity * 16);
+            rows = new Row[capacity];
+            positions = new long[capacity];
+            originals = new Object[capacity];
+            sources = new String[capacity];
+            reasons = new String[capacity];
         }
 
         void put(Row row, String source, long position, Object original, String reason) {
@@ -397,6 +404,7 @@ public final class HashConsolidator {
             for (int k = 0; k < keys; k++) {
                 resolveKey(firsts[k]);
             }
+            visible.sort();
             return this;
         }
 

@@ -10,12 +10,12 @@ import java.util.Comparator;
  * Visible rows collected by one worker of the in-memory path, each with its order bytes (order fields, then the
  * key) as a range of a shared byte slab rather than an array of its own, and the first eight of those bytes as a
  * number. A row's order bytes either already exist (a last-writer winner's, written when its record was read)
- * or are written here into slabs of {@value #SLAB} bytes. {@link #sorted} orders the rows of all workers
- * together exactly as {@link OrderedRow#ORDER} does on the spilling path: order bytes, then canonical row
+ * or are written here into slabs of {@value #SLAB} bytes. {@link #sort} and {@link #merge} order the rows of
+ * all workers exactly as {@link OrderedRow#ORDER} does on the spilling path: order bytes, then canonical row
  * bytes (which only siblings of one key need).
  *
  * <p>Memory: the rows' references plus 24 bytes per row, and the order bytes of merged rows. Not
- * thread-safe; one per worker, sorted together once every worker is done.
+ * thread-safe; one per worker, sorted by that worker, merged once every worker is done.
  */
 final class VisibleRows {
     private static final int SLAB = 1 << 16;
@@ -72,37 +72,66 @@ final class VisibleRows {
         slabUsed += length;
     }
 
-    /** The rows of every part in one sequence, sorted by order bytes, then canonical row bytes. */
-    static Row[] sorted(VisibleRows[] parts) {
-        int[] base = new int[parts.length + 1];
-        for (int p = 0; p < parts.length; p++) {
-            base[p + 1] = base[p] + parts[p].size;
-        }
-        int n = base[parts.length];
-        long[] prefixes = new long[n];
-        for (int p = 0; p < parts.length; p++) {
-            System.arraycopy(parts[p].prefixes, 0, prefixes, base[p], parts[p].size);
-        }
-        PrefixRadixSort.Sorted byPrefix = PrefixRadixSort.sort(prefixes, n);
+    /**
+     * Sorts this part's rows by order bytes, then canonical row bytes: a radix sort of the prefixes, then a
+     * comparison of the slab bytes inside each run of equal prefixes. Each worker sorts its own part, so the
+     * parts sort in parallel and {@link #merge} only interleaves them.
+     */
+    void sort() {
+        PrefixRadixSort.Sorted byPrefix = PrefixRadixSort.sort(prefixes, size);
         long[] keys = byPrefix.prefixes();
         int[] idx = byPrefix.index();
-        Comparator<Integer> fullOrder = fullOrder(parts, base);
+        Comparator<Integer> fullOrder = (x, y) -> compare(this, x, this, y);
         int runStart = 0;
-        for (int i = 1; i <= n; i++) {
-            if (i == n || keys[i] != keys[runStart]) {
+        for (int i = 1; i <= size; i++) {
+            if (i == size || keys[i] != keys[runStart]) {
                 if (i - runStart > 1) {
                     sortRun(idx, runStart, i, fullOrder);
                 }
                 runStart = i;
             }
         }
-        Row[] out = new Row[n];
-        for (int i = 0; i < n; i++) {
-            int g = idx[i];
-            int p = part(base, g);
-            out[i] = parts[p].rows[g - base[p]];
+        Row[] sortedRows = new Row[size];
+        byte[][] sortedSlabs = new byte[size][];
+        int[] sortedStarts = new int[size];
+        int[] sortedEnds = new int[size];
+        for (int i = 0; i < size; i++) {
+            int from = idx[i];
+            sortedRows[i] = rows[from];
+            sortedSlabs[i] = slabs[from];
+            sortedStarts[i] = starts[from];
+            sortedEnds[i] = ends[from];
+        }
+        rows = sortedRows;
+        slabs = sortedSlabs;
+        starts = sortedStarts;
+        ends = sortedEnds;
+        prefixes = keys;
+    }
+
+    /** Interleaves parts, each already {@link #sort sorted}, into one sequence in the same order. */
+    static Row[] merge(VisibleRows[] parts) {
+        int total = 0;
+        for (VisibleRows p : parts) {
+            total += p.size;
+        }
+        Row[] out = new Row[total];
+        int[] at = new int[parts.length];
+        for (int o = 0; o < total; o++) {
+            int best = -1;
+            for (int p = 0; p < parts.length; p++) {
+                if (at[p] < parts[p].size && (best < 0 || before(parts[p], at[p], parts[best], at[best]))) {
+                    best = p;
+                }
+            }
+            out[o] = parts[best].rows[at[best]++];
         }
         return out;
+    }
+
+    private static boolean before(VisibleRows a, int i, VisibleRows b, int j) {
+        int c = Long.compareUnsigned(a.prefixes[i], b.prefixes[j]);
+        return (c != 0 ? c : compare(a, i, b, j)) < 0;
     }
 
     /** Sorts {@code idx[from, to)}, a run of equal prefixes, by the full order bytes, then row bytes. */
@@ -117,26 +146,10 @@ final class VisibleRows {
         }
     }
 
-    private static Comparator<Integer> fullOrder(VisibleRows[] parts, int[] base) {
-        return (x, y) -> {
-            int px = part(base, x);
-            int py = part(base, y);
-            VisibleRows a = parts[px];
-            VisibleRows b = parts[py];
-            int i = x - base[px];
-            int j = y - base[py];
-            int c = Arrays.compareUnsigned(a.slabs[i], a.starts[i], a.ends[i], b.slabs[j], b.starts[j], b.ends[j]);
-            // equal order bytes mean one key's siblings: their canonical bytes decide, as on the spilling path
-            return c != 0 ? c : Arrays.compareUnsigned(RowCodec.encode(a.rows[i]), RowCodec.encode(b.rows[j]));
-        };
-    }
-
-    /** The part holding global index {@code g}; parts are few (one per worker), so a scan is enough. */
-    private static int part(int[] base, int g) {
-        int p = 0;
-        while (g >= base[p + 1]) {
-            p++;
-        }
-        return p;
+    /** Order bytes, then canonical row bytes, of row i of part a and row j of part b. */
+    private static int compare(VisibleRows a, int i, VisibleRows b, int j) {
+        int c = Arrays.compareUnsigned(a.slabs[i], a.starts[i], a.ends[i], b.slabs[j], b.starts[j], b.ends[j]);
+        // equal order bytes mean one key's siblings: their canonical bytes decide, as on the spilling path
+        return c != 0 ? c : Arrays.compareUnsigned(RowCodec.encode(a.rows[i]), RowCodec.encode(b.rows[j]));
     }
 }
