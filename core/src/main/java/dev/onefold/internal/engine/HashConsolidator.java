@@ -204,10 +204,10 @@ public final class HashConsolidator {
      * Up to {@value #BLOCK} buffered records in input order and what extraction reads from each: its order
      * bytes (order fields, then key bytes) in the block's slab, where its key bytes start, the first eight order
      * bytes as a number, the key's hash, the reason when it is rejected, and either its version and delete flag
-     * (last-writer) or its lifted state (other policies). Only last-writer writes order fields here: its visible
-     * rows are input rows, while the other policies' are built by merging and get their order bytes then. A
-     * record that could not be read has no row and arrives with its reason. Arrays grow with the block, so a
-     * small batch costs little.
+     * (last-writer) or its lifted state (other policies). A visible row that is one of the key's input records,
+     * as it is for most keys of every policy, reuses these order bytes; only rows built by merging get order
+     * bytes of their own. A record that could not be read has no row and arrives with its reason. The first
+     * block's arrays grow with it, so a small batch costs little.
      */
     private final class Block {
         private final ByteWriter slab;
@@ -263,8 +263,8 @@ public final class HashConsolidator {
             keyStart = new int[size];
             end = new int[size];
             hashes = new long[size];
+            prefixes = new long[size];
             if (byVersion) {
-                prefixes = new long[size];
                 versions = new long[size];
                 deletes = new boolean[size];
             } else {
@@ -284,15 +284,13 @@ public final class HashConsolidator {
             int start = slab.length();
             int key;
             try {
+                dataset.writeOrderFields(slab, row);
+                key = slab.length();
+                dataset.writeKey(slab, row);
                 if (byVersion) {
-                    dataset.writeOrderFields(slab, row);
-                    key = slab.length();
-                    dataset.writeKey(slab, row);
                     versions[j] = lastWriter.version(row);
                     deletes[j] = lastWriter.isTombstone(row);
                 } else {
-                    key = start;
-                    dataset.writeKey(slab, row);
                     states[j] = policy.lift(row);
                 }
             } catch (OnefoldException e) {
@@ -309,9 +307,7 @@ public final class HashConsolidator {
             keyStart[j] = key;
             end[j] = stop;
             hashes[j] = XxHash64.hash(array, key, stop - key, 0);
-            if (byVersion) {
-                prefixes[j] = PrefixRadixSort.prefix(array, start, stop);
-            }
+            prefixes[j] = PrefixRadixSort.prefix(array, start, stop);
         }
     }
 
@@ -416,16 +412,39 @@ public final class HashConsolidator {
                     int j = winner & (BLOCK - 1);
                     resolver.count(w.deletes[j]);
                     if (!w.deletes[j]) {
-                        visible.add(w.rows[j], w.slabBytes, w.orderStart[j], w.end[j], w.prefixes[j]);
+                        addInputRow(winner);
                     }
                     return;
                 }
             }
-            Block f = block(first);
-            int j = first & (BLOCK - 1);
             for (Row r : resolver.visible(foldGroup(first))) {
-                visible.add(dataset, r, f.slabBytes, f.keyStart[j], f.end[j]);
+                int member = memberHolding(first, r);
+                if (member >= 0) {
+                    addInputRow(member);
+                } else {
+                    Block f = block(first);
+                    int j = first & (BLOCK - 1);
+                    visible.add(dataset, r, f.slabBytes, f.keyStart[j], f.end[j]);
+                }
             }
+        }
+
+        /** Record i's row as a visible row, with the order bytes read with it. */
+        private void addInputRow(int i) {
+            Block b = block(i);
+            int j = i & (BLOCK - 1);
+            visible.add(b.rows[j], b.slabBytes, b.orderStart[j], b.end[j], b.prefixes[j]);
+        }
+
+        /** The record of the key starting at {@code first} whose row is {@code row} itself, or -1. */
+        private int memberHolding(int first, Row row) {
+            for (int i = first; i >= 0; i = next[i] - 1) {
+                Block b = block(i);
+                if (b.rows[i & (BLOCK - 1)] == row) {
+                    return i;
+                }
+            }
+            return -1;
         }
 
         /**
