@@ -227,7 +227,12 @@ public final class Json {
                 return bi.longValue();
             }
         }
-        return new BigDecimal(s);
+        try {
+            return new BigDecimal(s);
+        } catch (NumberFormatException e) {
+            // an exponent beyond BigDecimal's int scale, for example 1e9999999999
+            throw error("number out of range");
+        }
     }
 
     private void digits() {
