@@ -447,7 +447,11 @@ public final class JsonRowReader {
             String text = c.peek() == '"' ? c.string() : c.numberText();
             BigDecimal v;
             try {
-                v = new BigDecimal(text).setScale(decimal.getScale(), RoundingMode.UNNECESSARY);
+                v = new BigDecimal(text);
+                if (v.precision() - v.scale() > decimal.getPrecision() || v.scale() - decimal.getScale() > JsonValues.ABSURD_DIGITS) {
+                    throw DECLINED; // too large, or maybe too fine: left to the generic path, which refuses it without rescaling
+                }
+                v = v.setScale(decimal.getScale(), RoundingMode.UNNECESSARY);
             } catch (NumberFormatException | ArithmeticException e) {
                 throw DECLINED;
             }

@@ -41,6 +41,8 @@ import org.apache.avro.generic.GenericData;
  */
 public final class JsonValues {
     private static final Conversions.DecimalConversion DECIMALS = new Conversions.DecimalConversion();
+    /** Digits beyond a decimal type's precision or scale that no real value has; such values are refused before rescaling. */
+    static final int ABSURD_DIGITS = 100;
 
     private JsonValues() {}
 
@@ -265,6 +267,13 @@ public final class JsonValues {
             }
         } else {
             throw wrong(path, "a decimal number", json);
+        }
+        // rescaling a value far beyond the type (1e999999999) would take minutes: refuse it first, as rescaling would
+        if (v.signum() != 0 && v.precision() - v.scale() > d.getPrecision() + ABSURD_DIGITS) {
+            throw OnefoldException.record(AvroErrors.at(path) + AvroErrors.abbreviate(v) + " exceeds precision " + d.getPrecision());
+        }
+        if (v.scale() - d.getScale() > ABSURD_DIGITS && v.stripTrailingZeros().scale() > d.getScale()) {
+            throw OnefoldException.record(AvroErrors.at(path) + AvroErrors.abbreviate(v) + " does not fit scale " + d.getScale());
         }
         try {
             v = v.setScale(d.getScale(), RoundingMode.UNNECESSARY);
