@@ -3,7 +3,7 @@ package dev.onefold.examples.cli;
 import dev.onefold.OnefoldException;
 import dev.onefold.avro.AvroRecordAccess;
 import dev.onefold.avro.ContainerFiles;
-import dev.onefold.avro.JsonLines;
+import dev.onefold.record.Row;
 import java.io.BufferedReader;
 import java.io.IOException;
 import java.io.InputStreamReader;
@@ -17,7 +17,6 @@ import java.util.Collections;
 import java.util.Iterator;
 import java.util.List;
 import java.util.NoSuchElementException;
-import java.util.function.UnaryOperator;
 import org.apache.avro.generic.GenericRecord;
 
 /**
@@ -42,9 +41,8 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     static final int SLICE = 2048;
 
     private final List<Path> files;
-    private final JsonLines lines;
+    private final LineParser lines;
     private final AvroRecordAccess target;
-    private final UnaryOperator<GenericRecord> toTarget;
     private final Progress progress;
     private final SliceWorkers<InputRecord> workers = new SliceWorkers<>("onefold-input");
     private Iterator<InputRecord> current = Collections.emptyIterator();
@@ -56,19 +54,22 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     private long index;
     private boolean inputDone;
 
+    /** Reads one JSON line into a row of the dataset's schema; thread-safe, called on the workers. */
+    @FunctionalInterface
+    interface LineParser {
+        /** @throws OnefoldException (INVALID_RECORD) naming {@code where}, the field and the reason */
+        Row parse(String line, String where);
+    }
+
     /**
-     * @param files    the files, each ending in .jsonl or .avro
-     * @param lines    parses JSON lines under the files' schema
-     * @param target   reads records of the dataset's schema into rows; Avro files are resolved to its schema
-     * @param toTarget turns a record parsed from JSON lines into a record of the target schema (identity when
-     *                 both schemas are the same)
+     * @param files  the files, each ending in .jsonl or .avro
+     * @param lines  reads JSON lines, written under the files' schema, into rows of the target schema
+     * @param target reads records of the dataset's schema into rows; Avro files are resolved to its schema
      */
-    InputFiles(List<Path> files, JsonLines lines, AvroRecordAccess target, UnaryOperator<GenericRecord> toTarget,
-            Progress progress) {
+    InputFiles(List<Path> files, LineParser lines, AvroRecordAccess target, Progress progress) {
         this.files = List.copyOf(files);
         this.lines = lines;
         this.target = target;
-        this.toTarget = toTarget;
         this.progress = progress;
     }
 
@@ -187,8 +188,7 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
             String where = file + " line " + numbers[i];
             String text = texts.get(i);
             try {
-                GenericRecord record = toTarget.apply(lines.parse(text, where));
-                out.add(InputRecord.read(file, numbers[i], firstIndex + i, target.toRow(record)));
+                out.add(InputRecord.read(file, numbers[i], firstIndex + i, lines.parse(text, where)));
             } catch (OnefoldException e) {
                 if (e.kind() != OnefoldException.Kind.INVALID_RECORD) {
                     throw e;

@@ -5,9 +5,10 @@ import dev.onefold.avro.AvroRecordAccess;
 import dev.onefold.avro.ContainerFiles;
 import dev.onefold.avro.JsonLines;
 import dev.onefold.record.Row;
-import dev.onefold.spi.RecordAccess;
 import java.io.BufferedWriter;
 import java.io.IOException;
+import java.io.OutputStreamWriter;
+import java.io.Writer;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -23,14 +24,18 @@ import org.apache.avro.generic.GenericRecord;
  * commit deletes it, so a failed run never leaves a half-written output under the target's name.
  *
  * <p>Rows are converted (to JSON text, or to Avro records) in slices on worker threads ({@link SliceWorkers})
- * and written in the order they came. Single-threaded for the caller; must be closed. Cost: one conversion and
- * one write per record.
+ * and written in the order they came; a slice of JSON lines becomes one block of text, written with one call.
+ * Single-threaded for the caller; must be closed. Cost: one conversion per record and one write per slice
+ * (JSON lines) or per record (Avro).
  */
 final class OutputFile implements AutoCloseable {
     private final Path target;
     private final Path temp;
-    private final BufferedWriter lines;
-    private final RecordAccess<String> lineAccess;
+    /** Characters buffered before the UTF-8 encoder: a few slices of text, so writes reach the disk in large blocks. */
+    private static final int WRITE_BUFFER = 1 << 20;
+
+    private final Writer lines;
+    private final JsonLines json;
     private final ContainerFiles.Writer avro;
     private final AvroRecordAccess access;
     private final SliceWorkers<Object> workers = new SliceWorkers<>("onefold-output");
@@ -49,16 +54,18 @@ final class OutputFile implements AutoCloseable {
             throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot create: " + e.getMessage(), e);
         }
         if (format == FileFormat.JSON_LINES) {
-            this.lineAccess = JsonLines.of(schema).lineAccess();
+            this.json = JsonLines.of(schema);
             this.access = null;
             this.avro = null;
             try {
-                this.lines = Files.newBufferedWriter(temp, StandardCharsets.UTF_8);
+                // the encoder refuses unpaired surrogates, as Files.newBufferedWriter's does
+                this.lines = new BufferedWriter(new OutputStreamWriter(Files.newOutputStream(temp), StandardCharsets.UTF_8.newEncoder()),
+                        WRITE_BUFFER);
             } catch (IOException e) {
                 throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
             }
         } else {
-            this.lineAccess = null;
+            this.json = null;
             this.lines = null;
             this.access = AvroRecordAccess.of(schema);
             this.avro = ContainerFiles.create(temp, schema, compression);
@@ -84,13 +91,25 @@ final class OutputFile implements AutoCloseable {
     private void submitSlice() {
         List<Row> rows = slice;
         slice = new ArrayList<>(InputFiles.SLICE);
-        workers.submit(() -> {
-            List<Object> out = new ArrayList<>(rows.size());
-            for (Row r : rows) {
-                out.add(lines != null ? lineAccess.fromRow(r) : access.fromRow(r));
-            }
-            return out;
-        });
+        workers.submit(() -> lines != null ? List.of(text(rows)) : records(rows));
+    }
+
+    /** The slice's rows as JSON lines, each ended by a line feed. */
+    private String text(List<Row> rows) {
+        StringBuilder sb = new StringBuilder(rows.size() * 128);
+        for (Row r : rows) {
+            json.writeRow(r, sb);
+            sb.append('\n');
+        }
+        return sb.toString();
+    }
+
+    private List<Object> records(List<Row> rows) {
+        List<Object> out = new ArrayList<>(rows.size());
+        for (Row r : rows) {
+            out.add(access.fromRow(r));
+        }
+        return out;
     }
 
     private void emit(List<Object> converted) {
@@ -98,7 +117,6 @@ final class OutputFile implements AutoCloseable {
             if (lines != null) {
                 try {
                     lines.write((String) o);
-                    lines.write('\n');
                 } catch (IOException e) {
                     throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
                 }
