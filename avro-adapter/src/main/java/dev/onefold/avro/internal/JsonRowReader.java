@@ -567,6 +567,16 @@ public final class JsonRowReader {
         }
     }
 
+    /** 1e0 to 1e22: every one an exact double. */
+    private static final double[] POWERS_OF_TEN = new double[23];
+
+    static {
+        POWERS_OF_TEN[0] = 1;
+        for (int i = 1; i < POWERS_OF_TEN.length; i++) {
+            POWERS_OF_TEN[i] = POWERS_OF_TEN[i - 1] * 10;
+        }
+    }
+
     /**
      * A position in one line, with the token readers. Follows the grammar {@code dev.onefold.internal.json.Json}
      * accepts (RFC 8259, plus leading zeros, which it also reads); anything else declines.
@@ -814,10 +824,65 @@ public final class JsonRowReader {
             }
             int start = pos;
             number();
-            double d = Double.parseDouble(text.substring(start, pos));
+            double d = exactDouble(start);
+            if (Double.isNaN(d)) {
+                d = Double.parseDouble(text.substring(start, pos));
+            }
             // the generic path goes through Long or BigDecimal, which have no negative zero: -0 and -0.0 read as 0.0,
             // while a negative number too small for a double still rounds to -0.0
             return d == 0 && zeroMantissa(start) ? 0.0 : d;
+        }
+
+        /**
+         * The number text[start, pos) when its digits and its power of ten are both exact doubles, so one
+         * multiplication or division rounds it correctly (Clinger's fast path, common practice); NaN otherwise.
+         */
+        private double exactDouble(int start) {
+            int i = start;
+            boolean negative = text.charAt(i) == '-';
+            if (negative) {
+                i++;
+            }
+            long digits = 0;
+            int significant = 0;
+            int scale = 0;
+            boolean fraction = false;
+            for (; i < pos; i++) {
+                char ch = text.charAt(i);
+                if (ch == '.') {
+                    fraction = true;
+                    continue;
+                }
+                if (ch == 'e' || ch == 'E') {
+                    break;
+                }
+                if (digits != 0 || ch != '0') {
+                    if (++significant > 15) {
+                        return Double.NaN;
+                    }
+                }
+                digits = digits * 10 + (ch - '0');
+                if (fraction) {
+                    scale--;
+                }
+            }
+            if (i < pos) {
+                int e = i + 1;
+                boolean negativeExponent = text.charAt(e) == '-';
+                if (text.charAt(e) == '-' || text.charAt(e) == '+') {
+                    e++;
+                }
+                if (pos - e > 3) {
+                    return Double.NaN;
+                }
+                int exponent = Integer.parseInt(text, e, pos, 10);
+                scale += negativeExponent ? -exponent : exponent;
+            }
+            if (scale < -22 || scale > 22) {
+                return Double.NaN;
+            }
+            double d = scale < 0 ? digits / POWERS_OF_TEN[-scale] : digits * POWERS_OF_TEN[scale];
+            return negative ? -d : d;
         }
 
         private boolean zeroMantissa(int start) {
