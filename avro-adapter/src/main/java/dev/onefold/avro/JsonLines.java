@@ -9,6 +9,7 @@ import dev.onefold.record.Row;
 import dev.onefold.record.RowSchema;
 import dev.onefold.spi.RecordAccess;
 import java.util.Map;
+import java.util.function.Supplier;
 import org.apache.avro.Schema;
 import org.apache.avro.generic.GenericRecord;
 
@@ -66,6 +67,15 @@ public final class JsonLines {
     public Row parseRow(String line, String where) {
         Row row = reader.read(line);
         return row != null ? row : parseGenericRow(line, where);
+    }
+
+    /**
+     * As {@link #parseRow(String, String)}, asking for the line's name only when the line is refused or needs the
+     * generic path, so reading good lines builds no message text.
+     */
+    public Row parseRow(String line, Supplier<String> where) {
+        Row row = reader.read(line);
+        return row != null ? row : parseGenericRow(line, where.get());
     }
 
     /**

@@ -47,7 +47,9 @@ public final class JsonRowWriter {
             return;
         }
         switch (type.kind()) {
-            case BOOLEAN, INT, LONG -> sb.append(v);
+            case BOOLEAN -> sb.append((boolean) (Boolean) v);
+            case INT -> sb.append((int) (Integer) v);
+            case LONG -> sb.append((long) (Long) v);
             case DECIMAL -> sb.append(v.toString());
             case FLOAT -> {
                 float f = (Float) v;

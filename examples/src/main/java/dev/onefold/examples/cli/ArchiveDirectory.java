@@ -16,6 +16,7 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.function.Supplier;
 import java.util.function.UnaryOperator;
 import java.util.stream.Stream;
 import org.apache.avro.AvroRuntimeException;
@@ -190,10 +191,11 @@ public final class ArchiveDirectory {
          * One line of this version as a row of the newest version: read straight into a row when this is the
          * newest version, else parsed into a record and resolved through Avro.
          *
+         * @param where names the line in errors; asked for only when needed
          * @throws dev.onefold.OnefoldException (INVALID_RECORD) naming {@code where}, the field and the reason
          */
-        public Row parseRow(String line, String where, AvroRecordAccess newest) {
-            return isNewest ? lines.parseRow(line, where) : newest.toRow(toNewest.apply(lines.parse(line, where)));
+        public Row parseRow(String line, Supplier<String> where, AvroRecordAccess newest) {
+            return isNewest ? lines.parseRow(line, where) : newest.toRow(toNewest.apply(lines.parse(line, where.get())));
         }
     }
 }

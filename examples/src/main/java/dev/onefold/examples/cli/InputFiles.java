@@ -11,6 +11,7 @@ import java.util.Collections;
 import java.util.Iterator;
 import java.util.List;
 import java.util.NoSuchElementException;
+import java.util.function.Supplier;
 import org.apache.avro.generic.GenericRecord;
 
 /**
@@ -50,8 +51,11 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     /** Reads one JSON line into a row of the dataset's schema; thread-safe, called on the workers. */
     @FunctionalInterface
     interface LineParser {
-        /** @throws OnefoldException (INVALID_RECORD) naming {@code where}, the field and the reason */
-        Row parse(String line, String where);
+        /**
+         * @param where names the line (file and line number), built only when needed for a message
+         * @throws OnefoldException (INVALID_RECORD) naming {@code where}, the field and the reason
+         */
+        Row parse(String line, Supplier<String> where);
     }
 
     /**
@@ -154,14 +158,14 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
         for (int i = 0; i < block.count(); i++) {
             long line = block.numbers()[i];
             long at = block.firstIndex() + i;
-            String where = file + " line " + line;
             String text = block.text(i);
             try {
-                out.add(InputRecord.read(file, line, at, lines.parse(text, where)));
+                out.add(InputRecord.read(file, line, at, lines.parse(text, () -> file + " line " + line)));
             } catch (OnefoldException e) {
                 if (e.kind() != OnefoldException.Kind.INVALID_RECORD) {
                     throw e;
                 }
+                String where = file + " line " + line;
                 String reason = e.getMessage().startsWith(where) ? e.getMessage() : where + ": " + e.getMessage();
                 out.add(InputRecord.unreadable(file, line, at, reason, text));
             }

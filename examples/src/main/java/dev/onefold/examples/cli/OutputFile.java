@@ -5,10 +5,11 @@ import dev.onefold.avro.AvroRecordAccess;
 import dev.onefold.avro.ContainerFiles;
 import dev.onefold.avro.JsonLines;
 import dev.onefold.record.Row;
-import java.io.BufferedWriter;
+import java.io.BufferedOutputStream;
 import java.io.IOException;
-import java.io.OutputStreamWriter;
-import java.io.Writer;
+import java.io.OutputStream;
+import java.nio.CharBuffer;
+import java.nio.charset.CharacterCodingException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -31,10 +32,10 @@ import org.apache.avro.generic.GenericRecord;
 final class OutputFile implements AutoCloseable {
     private final Path target;
     private final Path temp;
-    /** Characters buffered before the UTF-8 encoder: a few slices of text, so writes reach the disk in large blocks. */
+    /** Bytes buffered before the file: a few slices of text, so writes reach the disk in large blocks. */
     private static final int WRITE_BUFFER = 1 << 20;
 
-    private final Writer lines;
+    private final OutputStream lines;
     private final JsonLines json;
     private final ContainerFiles.Writer avro;
     private final AvroRecordAccess access;
@@ -58,9 +59,7 @@ final class OutputFile implements AutoCloseable {
             this.access = null;
             this.avro = null;
             try {
-                // the encoder refuses unpaired surrogates, as Files.newBufferedWriter's does
-                this.lines = new BufferedWriter(new OutputStreamWriter(Files.newOutputStream(temp), StandardCharsets.UTF_8.newEncoder()),
-                        WRITE_BUFFER);
+                this.lines = new BufferedOutputStream(Files.newOutputStream(temp), WRITE_BUFFER);
             } catch (IOException e) {
                 throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
             }
@@ -94,14 +93,36 @@ final class OutputFile implements AutoCloseable {
         workers.submit(() -> lines != null ? List.of(text(rows)) : records(rows));
     }
 
-    /** The slice's rows as JSON lines, each ended by a line feed. */
-    private String text(List<Row> rows) {
+    /** The slice's rows as JSON lines in UTF-8, each ended by a line feed. */
+    private byte[] text(List<Row> rows) {
         StringBuilder sb = new StringBuilder(rows.size() * 128);
         for (Row r : rows) {
             json.writeRow(r, sb);
             sb.append('\n');
         }
-        return sb.toString();
+        String text = sb.toString();
+        byte[] bytes = text.getBytes(StandardCharsets.UTF_8);
+        if (bytes.length != text.length()) {
+            refuseUnpairedSurrogates(text);
+        }
+        return bytes;
+    }
+
+    /**
+     * getBytes would write an unpaired surrogate (a string read from a "\ud800" escape) as '?': refuse it with the
+     * UTF-8 encoder's own error instead, as a character writer does.
+     */
+    private void refuseUnpairedSurrogates(String text) {
+        for (int i = 0; i < text.length(); i++) {
+            if (Character.isSurrogate(text.charAt(i))) {
+                try {
+                    StandardCharsets.UTF_8.newEncoder().encode(CharBuffer.wrap(text));
+                } catch (CharacterCodingException e) {
+                    throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
+                }
+                return;
+            }
+        }
     }
 
     private List<Object> records(List<Row> rows) {
@@ -116,7 +137,7 @@ final class OutputFile implements AutoCloseable {
         for (Object o : converted) {
             if (lines != null) {
                 try {
-                    lines.write((String) o);
+                    lines.write((byte[]) o);
                 } catch (IOException e) {
                     throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
                 }
