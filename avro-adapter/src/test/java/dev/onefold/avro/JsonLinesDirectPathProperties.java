@@ -49,7 +49,7 @@ class JsonLinesDirectPathProperties {
         return fast != null;
     }
 
-    @Property(tries = 300)
+    @Property(tries = 200)
     void generatedRecords_writeAsTheGenericWriterAndReadBackDirectly(@ForAll long seed) {
         GeneratedSchemas gen = new GeneratedSchemas(seed);
         Schema schema = gen.keyedRecord();

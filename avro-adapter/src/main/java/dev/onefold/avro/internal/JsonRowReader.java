@@ -1,5 +1,6 @@
 package dev.onefold.avro.internal;
 
+import dev.onefold.internal.json.Json;
 import dev.onefold.record.FieldType;
 import dev.onefold.record.Row;
 import dev.onefold.record.RowSchema;
@@ -255,17 +256,14 @@ public final class JsonRowReader {
                 }
                 return branch.read(c);
             }
-            c.pos++;
-            c.skipSpace();
-            if (!c.keyIs(tag)) {
+            if (!c.open('{', '}') || !c.keyIs(tag)) {
                 throw DECLINED;
             }
-            c.skipSpace();
-            c.expect(':');
-            c.skipSpace();
+            c.colon();
             Object v = branch.read(c);
-            c.skipSpace();
-            c.expect('}');
+            if (c.more('}')) {
+                throw DECLINED; // a second key: not the tagged form
+            }
             return v;
         }
     }
@@ -292,36 +290,21 @@ public final class JsonRowReader {
             if (c.peek() == 'n') {
                 throw DECLINED; // null for a field that is not nullable
             }
-            c.expect('{');
             int n = children.length;
             Object[] values = new Object[n];
             boolean[] seen = new boolean[n];
-            c.skipSpace();
-            if (c.peek() == '}') {
-                c.pos++;
-            } else {
+            if (c.open('{', '}')) {
                 int expected = 0;
-                while (true) {
-                    c.skipSpace();
+                do {
                     int i = field(c, expected);
                     if (seen[i]) {
                         throw DECLINED; // a duplicate key
                     }
                     seen[i] = true;
-                    c.skipSpace();
-                    c.expect(':');
-                    c.skipSpace();
+                    c.colon();
                     values[i] = children[i].read(c);
                     expected = i + 1 < n ? i + 1 : 0;
-                    c.skipSpace();
-                    char next = c.next();
-                    if (next == '}') {
-                        break;
-                    }
-                    if (next != ',') {
-                        throw DECLINED;
-                    }
-                }
+                } while (c.more('}'));
             }
             for (int i = 0; i < n; i++) {
                 if (!seen[i]) {
@@ -356,25 +339,13 @@ public final class JsonRowReader {
 
         @Override
         public Object read(Cursor c) {
-            c.expect('[');
             List<Object> out = new ArrayList<>();
-            c.skipSpace();
-            if (c.peek() == ']') {
-                c.pos++;
-                return out;
+            if (c.open('[', ']')) {
+                do {
+                    out.add(element.read(c));
+                } while (c.more(']'));
             }
-            while (true) {
-                c.skipSpace();
-                out.add(element.read(c));
-                c.skipSpace();
-                char next = c.next();
-                if (next == ']') {
-                    return out;
-                }
-                if (next != ',') {
-                    throw DECLINED;
-                }
-            }
+            return out;
         }
     }
 
@@ -387,32 +358,18 @@ public final class JsonRowReader {
 
         @Override
         public Object read(Cursor c) {
-            c.expect('{');
             Map<String, Object> out = new HashMap<>();
-            c.skipSpace();
-            if (c.peek() == '}') {
-                c.pos++;
-                return out;
+            if (c.open('{', '}')) {
+                do {
+                    String key = c.key();
+                    if (out.containsKey(key)) {
+                        throw DECLINED; // a duplicate key
+                    }
+                    c.colon();
+                    out.put(key, value.read(c));
+                } while (c.more('}'));
             }
-            while (true) {
-                c.skipSpace();
-                String key = c.key();
-                if (out.containsKey(key)) {
-                    throw DECLINED; // a duplicate key
-                }
-                c.skipSpace();
-                c.expect(':');
-                c.skipSpace();
-                out.put(key, value.read(c));
-                c.skipSpace();
-                char next = c.next();
-                if (next == '}') {
-                    return out;
-                }
-                if (next != ',') {
-                    throw DECLINED;
-                }
-            }
+            return out;
         }
     }
 
@@ -619,6 +576,41 @@ public final class JsonRowReader {
             }
         }
 
+        /**
+         * Moves past {@code open} and the spaces after it; false when the container is empty (then also past
+         * {@code close}).
+         */
+        boolean open(char open, char close) {
+            expect(open);
+            skipSpace();
+            if (peek() == close) {
+                pos++;
+                return false;
+            }
+            return true;
+        }
+
+        /** After an element: true past a comma and spaces (another element follows), false past {@code close}. */
+        boolean more(char close) {
+            skipSpace();
+            char ch = next();
+            if (ch == ',') {
+                skipSpace();
+                return true;
+            }
+            if (ch != close) {
+                throw DECLINED;
+            }
+            return false;
+        }
+
+        /** Moves past the colon after a key and the spaces around it. */
+        void colon() {
+            skipSpace();
+            expect(':');
+            skipSpace();
+        }
+
         void literal(String word) {
             if (!text.startsWith(word, pos)) {
                 throw DECLINED;
@@ -697,22 +689,15 @@ public final class JsonRowReader {
                     continue;
                 }
                 char e = next();
-                switch (e) {
-                    case '"' -> sb.append('"');
-                    case '\\' -> sb.append('\\');
-                    case '/' -> sb.append('/');
-                    case 'b' -> sb.append('\b');
-                    case 'f' -> sb.append('\f');
-                    case 'n' -> sb.append('\n');
-                    case 'r' -> sb.append('\r');
-                    case 't' -> sb.append('\t');
-                    case 'u' -> sb.append(hex4());
-                    default -> throw DECLINED;
+                int unescaped = e == 'u' ? hex4() : Json.unescape(e);
+                if (unescaped < 0) {
+                    throw DECLINED;
                 }
+                sb.append((char) unescaped);
             }
         }
 
-        private char hex4() {
+        private int hex4() {
             if (pos + 4 > text.length()) {
                 throw DECLINED;
             }
@@ -725,43 +710,29 @@ public final class JsonRowReader {
                 v = v * 16 + d;
             }
             pos += 4;
-            return (char) v;
+            return v;
         }
 
-        /** Moves past one JSON number; returns whether it had neither fraction nor exponent. */
+        /** Moves past one JSON number (the grammar {@link Json#numberEnd} reads); returns whether it is an integer. */
         private boolean number() {
-            if (peek() == '-') {
-                pos++;
-            }
-            digits();
-            boolean integral = true;
-            if (pos < text.length() && text.charAt(pos) == '.') {
-                integral = false;
-                pos++;
-                digits();
-            }
-            if (pos < text.length() && (text.charAt(pos) == 'e' || text.charAt(pos) == 'E')) {
-                integral = false;
-                pos++;
-                if (pos < text.length() && (text.charAt(pos) == '+' || text.charAt(pos) == '-')) {
-                    pos++;
-                }
-                if (digits() > 9) {
-                    throw DECLINED; // an exponent the generic reader's BigDecimal may not hold
-                }
-            }
-            return integral;
-        }
-
-        private int digits() {
             int start = pos;
-            while (pos < text.length() && text.charAt(pos) >= '0' && text.charAt(pos) <= '9') {
-                pos++;
-            }
-            if (pos == start) {
+            int end = Json.numberEnd(text, start);
+            if (end < 0) {
                 throw DECLINED;
             }
-            return pos - start;
+            pos = end;
+            boolean integral = true;
+            for (int i = start; i < end; i++) {
+                char ch = text.charAt(i);
+                if (ch == 'e' || ch == 'E') {
+                    if (end - i > 10) {
+                        throw DECLINED; // maybe an exponent the generic reader's BigDecimal cannot hold
+                    }
+                    return false;
+                }
+                integral &= ch != '.';
+            }
+            return integral;
         }
 
         String numberText() {

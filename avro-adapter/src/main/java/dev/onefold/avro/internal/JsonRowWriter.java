@@ -21,8 +21,6 @@ import java.util.Map;
  * printed digit by digit instead of through {@code java.time}'s formatter.
  */
 public final class JsonRowWriter {
-    private static final char[] HEX = "0123456789abcdef".toCharArray();
-
     private JsonRowWriter() {}
 
     /** Appends the row's JSON object (no line break). */
@@ -34,7 +32,7 @@ public final class JsonRowWriter {
                 sb.append(',');
             }
             RowSchema.Field f = schema.field(i);
-            quote(f.name(), sb);
+            Json.quote(f.name(), sb);
             sb.append(':');
             value(f.type(), row.get(i), sb);
         }
@@ -51,23 +49,16 @@ public final class JsonRowWriter {
             case INT -> sb.append((int) (Integer) v);
             case LONG -> sb.append((long) (Long) v);
             case DECIMAL -> sb.append(v.toString());
-            case FLOAT -> {
-                float f = (Float) v;
-                if (Float.isFinite(f) && !(f == 0 && 1 / f < 0)) {
-                    sb.append(f);
-                } else {
-                    quote(Float.toString(f), sb);
-                }
-            }
-            case DOUBLE -> {
-                double d = (Double) v;
+            case FLOAT, DOUBLE -> {
+                // NaN, the infinities and -0.0 have no JSON number: they are written as their Java text in quotes
+                double d = ((Number) v).doubleValue();
                 if (Double.isFinite(d) && !(d == 0 && 1 / d < 0)) {
-                    sb.append(d);
+                    sb.append(v.toString());
                 } else {
-                    quote(Double.toString(d), sb);
+                    Json.quote(v.toString(), sb);
                 }
             }
-            case STRING -> quote((String) v, sb);
+            case STRING -> Json.quote((String) v, sb);
             case UUID -> sb.append('"').append(v).append('"');
             case BYTES -> {
                 ByteBuffer b = ((ByteBuffer) v).duplicate();
@@ -103,7 +94,7 @@ public final class JsonRowWriter {
                         sb.append(',');
                     }
                     first = false;
-                    quote((String) e.getKey(), sb);
+                    Json.quote((String) e.getKey(), sb);
                     sb.append(':');
                     value(type.element(), e.getValue(), sb);
                 }
@@ -114,35 +105,11 @@ public final class JsonRowWriter {
         }
     }
 
-    /** A quoted JSON string with the escapes {@link Json#quote} writes. */
-    private static void quote(String s, StringBuilder sb) {
-        sb.append('"');
-        int n = s.length();
-        int from = 0;
-        for (int i = 0; i < n; i++) {
-            char c = s.charAt(i);
-            if (c >= 0x20 && c != '"' && c != '\\') {
-                continue;
-            }
-            sb.append(s, from, i);
-            from = i + 1;
-            switch (c) {
-                case '"' -> sb.append("\\\"");
-                case '\\' -> sb.append("\\\\");
-                case '\n' -> sb.append("\\n");
-                case '\r' -> sb.append("\\r");
-                case '\t' -> sb.append("\\t");
-                default -> sb.append("\\u00").append(HEX[c >> 4]).append(HEX[c & 15]);
-            }
-        }
-        sb.append(s, from, n).append('"');
-    }
-
     /** As {@code Instant.toString()}: seconds always, the fraction in groups of three digits as needed. */
     private static void instant(long seconds, int nanos, StringBuilder sb) {
         long days = Math.floorDiv(seconds, 86_400L);
         if (days < MIN_FAST_DAY || days > MAX_FAST_DAY) {
-            quote(Instant.ofEpochSecond(seconds, nanos).toString(), sb);
+            Json.quote(Instant.ofEpochSecond(seconds, nanos).toString(), sb);
             return;
         }
         int secondOfDay = (int) Math.floorMod(seconds, 86_400L);
@@ -198,14 +165,12 @@ public final class JsonRowWriter {
         sb.append((char) ('0' + v / 10)).append((char) ('0' + v % 10));
     }
 
+    /** {@code v} (non-negative, below 10^width) as exactly {@code width} digits. */
     private static void digits(int v, int width, StringBuilder sb) {
-        int start = sb.length();
-        for (int i = 0; i < width; i++) {
-            sb.append('0');
-        }
-        for (int i = start + width - 1; i >= start; i--) {
-            sb.setCharAt(i, (char) ('0' + v % 10));
-            v /= 10;
+        for (int unit = POWERS_OF_TEN[width - 1]; unit > 0; unit /= 10) {
+            sb.append((char) ('0' + v / unit % 10));
         }
     }
+
+    private static final int[] POWERS_OF_TEN = {1, 10, 100, 1000, 10_000, 100_000, 1_000_000, 10_000_000, 100_000_000};
 }
