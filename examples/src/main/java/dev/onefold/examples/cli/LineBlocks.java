@@ -25,21 +25,28 @@ final class LineBlocks implements AutoCloseable {
 
     private final String file;
     private final InputStream in;
+    private final int blockSize;
     private byte[] pending = new byte[0];
     private int pendingLength;
     private long lineNo;
     private long index;
     private boolean ended;
 
-    private LineBlocks(String file, InputStream in) {
+    private LineBlocks(String file, InputStream in, int blockSize) {
         this.file = file;
         this.in = in;
+        this.blockSize = blockSize;
     }
 
     /** @throws OnefoldException (IO) naming the file when it cannot be opened */
     static LineBlocks open(Path path) {
+        return open(path, BLOCK);
+    }
+
+    /** As {@link #open(Path)}, reading {@code blockSize} bytes at a time (tests use small blocks to cut lines often). */
+    static LineBlocks open(Path path, int blockSize) {
         try {
-            return new LineBlocks(path.toString(), Files.newInputStream(path));
+            return new LineBlocks(path.toString(), Files.newInputStream(path), blockSize);
         } catch (IOException e) {
             throw new OnefoldException(OnefoldException.Kind.IO, path + ": cannot open: " + e.getMessage(), e);
         }
@@ -78,7 +85,7 @@ final class LineBlocks implements AutoCloseable {
         if (ended) {
             return null;
         }
-        byte[] buf = Arrays.copyOf(pending, Math.max(BLOCK, pendingLength * 2));
+        byte[] buf = Arrays.copyOf(pending, Math.max(blockSize, pendingLength * 2));
         int n = pendingLength;
         boolean atEnd = false;
         try {
