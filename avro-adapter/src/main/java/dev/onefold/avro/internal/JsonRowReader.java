@@ -34,8 +34,9 @@ import org.apache.avro.generic.GenericEnumSymbol;
  * {@link JsonValues} then {@link SchemaMapping}) would give, and returns null for everything else — every
  * malformed or non-conforming line (so error messages keep coming from the generic path, which names the
  * position, field and reason) and a few rare shapes: a union value in Avro's tagged form whose branch is a
- * record or map, a missing field whose default is neither a plain scalar nor an empty array or map, and
- * numbers with exponents of more than nine digits. The caller then runs the generic path on that line.
+ * record or map, a missing field whose default is neither a plain scalar nor an empty array or map, numbers
+ * whose exponent runs past nine characters, decimals far beyond their type, and schemas nested more than
+ * {@value #MAX_SCHEMA_DEPTH} deep. The caller then runs the generic path on that line.
  *
  * <p>Immutable and thread-safe: the reader tree is built once per schema; each call keeps its position in a
  * cursor of its own. Cost: linear in the line's length.
