@@ -23,7 +23,7 @@ import net.jqwik.api.constraints.IntRange;
  * Lines cut from blocks of bytes are the lines {@code BufferedReader.readLine} reads (the reader the tool used
  * before), with the same numbers, blank lines skipped, whatever the block size and the line ends (LF, CR, CR LF).
  */
-class LineBlocksProperties {
+class LineBlocksTest {
     private static final String[] PIECES = {"{\"id\":1}", "", " ", "\t", "\u000b", "\u001f", "\u2003", "\u00a0", "\u00e9",
         "\ud83d\ude00", "x", "\"\\n\"", "\ufffd"};
     private static final String[] ENDS = {"\n", "\r", "\r\n", "\n\n", "\r\r"};
