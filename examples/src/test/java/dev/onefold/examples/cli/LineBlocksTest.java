@@ -8,7 +8,6 @@ import dev.onefold.OnefoldException;
 import java.io.BufferedReader;
 import java.io.ByteArrayOutputStream;
 import java.io.IOException;
-import java.io.UncheckedIOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -82,12 +81,12 @@ class LineBlocksTest {
     }
 
     @Property(tries = 50)
-    void text_invalidUtf8_namesTheFileAndLine(@ForAll @IntRange(min = 1, max = 16) int blockSize) {
+    void text_invalidUtf8_namesTheFileAndLine(@ForAll @IntRange(min = 1, max = 16) int blockSize) throws IOException {
         ByteArrayOutputStream bytes = new ByteArrayOutputStream();
         bytes.writeBytes("{\"a\":1}\r\n\n{\"a\":2}\n".getBytes(StandardCharsets.UTF_8));
         // 0xC3 0x28 is not UTF-8: 0xC3 opens a two-byte sequence that 0x28 cannot continue (RFC 3629 section 3)
         bytes.writeBytes(new byte[] {'{', '"', (byte) 0xC3, 0x28, '"', '}', '\n'});
-        Path file = write(bytes.toByteArray());
+        Path file = Files.write(Files.createTempFile("onefold-lines-", ".jsonl"), bytes.toByteArray());
         try (LineBlocks blocks = LineBlocks.open(file, blockSize)) {
             OnefoldException e = assertThrows(OnefoldException.class, () -> {
                 LineBlocks.Block b;
@@ -100,23 +99,7 @@ class LineBlocksTest {
             assertEquals(OnefoldException.Kind.IO, e.kind());
             assertTrue(e.getMessage().startsWith(file + " line 4: not valid UTF-8"), e.getMessage());
         } finally {
-            delete(file);
-        }
-    }
-
-    private static Path write(byte[] bytes) {
-        try {
-            return Files.write(Files.createTempFile("onefold-lines-", ".jsonl"), bytes);
-        } catch (IOException e) {
-            throw new UncheckedIOException(e);
-        }
-    }
-
-    private static void delete(Path file) {
-        try {
             Files.delete(file);
-        } catch (IOException e) {
-            throw new UncheckedIOException(e);
         }
     }
 }
