@@ -1,16 +1,12 @@
 package dev.onefold.avro.internal;
 
 import dev.onefold.OnefoldException;
-import dev.onefold.record.FieldType;
-import dev.onefold.record.Row;
-import dev.onefold.record.RowSchema;
 import java.math.BigDecimal;
 import java.math.RoundingMode;
 import java.nio.ByteBuffer;
 import java.time.DateTimeException;
 import java.time.Instant;
 import java.time.LocalDate;
-import java.util.ArrayList;
 import java.util.Base64;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -23,8 +19,10 @@ import org.apache.avro.Schema;
 import org.apache.avro.generic.GenericData;
 
 /**
- * Plain JSON values to Avro generic values (guided by the Avro schema, so enums, fixed sizes, defaults and
- * Avro's tagged unions are understood) and rows back to plain JSON values (guided by the row schema).
+ * Plain JSON values to Avro generic values, guided by the Avro schema, so enums, fixed sizes, defaults and
+ * Avro's tagged unions are understood: the generic path of JSON lines, which gives every line's result or its
+ * precise error ({@link JsonRowReader} reads the common lines faster to the same rows, and {@link JsonRowWriter}
+ * writes rows back in this form).
  *
  * <h2>Plain JSON form</h2>
  * <pre>
@@ -43,6 +41,8 @@ import org.apache.avro.generic.GenericData;
  */
 public final class JsonValues {
     private static final Conversions.DecimalConversion DECIMALS = new Conversions.DecimalConversion();
+    /** Digits beyond a decimal type's precision or scale that no real value has; such values are refused before rescaling. */
+    static final int ABSURD_DIGITS = 100;
 
     private JsonValues() {}
 
@@ -268,6 +268,13 @@ public final class JsonValues {
         } else {
             throw wrong(path, "a decimal number", json);
         }
+        // rescaling a value far beyond the type (1e999999999) would take minutes: refuse it first, as rescaling would
+        if (v.signum() != 0 && v.precision() - v.scale() > d.getPrecision() + ABSURD_DIGITS) {
+            throw OnefoldException.record(AvroErrors.at(path) + AvroErrors.abbreviate(v) + " exceeds precision " + d.getPrecision());
+        }
+        if (v.scale() - d.getScale() > ABSURD_DIGITS && v.stripTrailingZeros().scale() > d.getScale()) {
+            throw OnefoldException.record(AvroErrors.at(path) + AvroErrors.abbreviate(v) + " does not fit scale " + d.getScale());
+        }
         try {
             v = v.setScale(d.getScale(), RoundingMode.UNNECESSARY);
         } catch (ArithmeticException e) {
@@ -306,56 +313,5 @@ public final class JsonValues {
         String got = json == null ? "null" : json instanceof String s ? "\"" + AvroErrors.abbreviate(s) + "\""
                 : json instanceof Map ? "an object" : json instanceof List ? "an array" : AvroErrors.abbreviate(json);
         return OnefoldException.record(AvroErrors.at(path) + "expects " + expected + ", got " + got);
-    }
-
-    /** The plain JSON value (maps, lists, strings, numbers, booleans, null) of a row. */
-    public static Map<String, Object> fromRow(Row row) {
-        RowSchema schema = row.schema();
-        Map<String, Object> out = new LinkedHashMap<>();
-        for (int i = 0; i < schema.size(); i++) {
-            out.put(schema.field(i).name(), plain(schema.field(i).type(), row.get(i)));
-        }
-        return out;
-    }
-
-    private static Object plain(FieldType type, Object v) {
-        if (v == null) {
-            return null;
-        }
-        return switch (type.kind()) {
-            case BOOLEAN, INT, LONG, STRING, DECIMAL -> v;
-            case FLOAT, DOUBLE -> {
-                double d = ((Number) v).doubleValue();
-                yield Double.isFinite(d) && !(d == 0 && 1 / d < 0) ? v : v.toString();
-            }
-            case BYTES -> {
-                ByteBuffer b = ((ByteBuffer) v).duplicate();
-                byte[] a = new byte[b.remaining()];
-                b.get(a);
-                yield Base64.getEncoder().encodeToString(a);
-            }
-            case TIMESTAMP_MILLIS -> Instant.ofEpochMilli((Long) v).toString();
-            case TIMESTAMP_MICROS -> {
-                long micros = (Long) v;
-                yield Instant.ofEpochSecond(Math.floorDiv(micros, 1_000_000L), Math.floorMod(micros, 1_000_000L) * 1000L).toString();
-            }
-            case DATE -> LocalDate.ofEpochDay((Integer) v).toString();
-            case UUID -> v.toString();
-            case LIST -> {
-                List<Object> out = new ArrayList<>();
-                for (Object o : (List<?>) v) {
-                    out.add(plain(type.element(), o));
-                }
-                yield out;
-            }
-            case MAP -> {
-                Map<String, Object> out = new LinkedHashMap<>();
-                for (Map.Entry<?, ?> e : ((Map<?, ?>) v).entrySet()) {
-                    out.put((String) e.getKey(), plain(type.element(), e.getValue()));
-                }
-                yield out;
-            }
-            case RECORD -> fromRow((Row) v);
-        };
     }
 }

@@ -167,27 +167,22 @@ public final class Json {
                 sb.append(text, start, pos);
                 pos++;
                 char e = next();
-                switch (e) {
-                    case '"' -> sb.append('"');
-                    case '\\' -> sb.append('\\');
-                    case '/' -> sb.append('/');
-                    case 'b' -> sb.append('\b');
-                    case 'f' -> sb.append('\f');
-                    case 'n' -> sb.append('\n');
-                    case 'r' -> sb.append('\r');
-                    case 't' -> sb.append('\t');
-                    case 'u' -> {
-                        if (pos + 4 > text.length()) {
-                            throw error("truncated \\u escape");
-                        }
-                        try {
-                            sb.append((char) Integer.parseInt(text.substring(pos, pos + 4), 16));
-                        } catch (NumberFormatException ex) {
-                            throw error("bad \\u escape");
-                        }
-                        pos += 4;
+                if (e == 'u') {
+                    if (pos + 4 > text.length()) {
+                        throw error("truncated \\u escape");
                     }
-                    default -> throw error("bad escape \\" + e);
+                    try {
+                        sb.append((char) Integer.parseInt(text.substring(pos, pos + 4), 16));
+                    } catch (NumberFormatException ex) {
+                        throw error("bad \\u escape");
+                    }
+                    pos += 4;
+                } else {
+                    int unescaped = unescape(e);
+                    if (unescaped < 0) {
+                        throw error("bad escape \\" + e);
+                    }
+                    sb.append((char) unescaped);
                 }
                 start = pos;
             } else {
@@ -196,25 +191,36 @@ public final class Json {
         }
     }
 
+    /**
+     * The character a one-letter string escape stands for (RFC 8259 section 7: {@code \" \\ \/ \b \f \n \r \t}),
+     * or -1 when the letter is none of them (the letter u, for four hex digits, is read separately). Shared with
+     * readers that scan strings themselves.
+     */
+    public static int unescape(char letter) {
+        return switch (letter) {
+            case '"' -> '"';
+            case '\\' -> '\\';
+            case '/' -> '/';
+            case 'b' -> '\b';
+            case 'f' -> '\f';
+            case 'n' -> '\n';
+            case 'r' -> '\r';
+            case 't' -> '\t';
+            default -> -1;
+        };
+    }
+
     private Object number() {
         int start = pos;
-        if (peek() == '-') {
-            pos++;
+        int end = numberEnd(text, start);
+        if (end < 0) {
+            pos = -end - 1;
+            throw error("expected a digit");
         }
-        digits();
+        pos = end;
         boolean integral = true;
-        if (pos < text.length() && text.charAt(pos) == '.') {
-            integral = false;
-            pos++;
-            digits();
-        }
-        if (pos < text.length() && (text.charAt(pos) == 'e' || text.charAt(pos) == 'E')) {
-            integral = false;
-            pos++;
-            if (pos < text.length() && (text.charAt(pos) == '+' || text.charAt(pos) == '-')) {
-                pos++;
-            }
-            digits();
+        for (int i = start; i < end && integral; i++) {
+            integral = text.charAt(i) != '.' && text.charAt(i) != 'e' && text.charAt(i) != 'E';
         }
         String s = text.substring(start, pos);
         if (integral && pos - start <= 18) {
@@ -227,17 +233,47 @@ public final class Json {
                 return bi.longValue();
             }
         }
-        return new BigDecimal(s);
+        try {
+            return new BigDecimal(s);
+        } catch (NumberFormatException e) {
+            // an exponent beyond BigDecimal's int scale, for example 1e9999999999
+            throw error("number out of range");
+        }
     }
 
-    private void digits() {
-        int start = pos;
-        while (pos < text.length() && Character.isDigit(text.charAt(pos)) && text.charAt(pos) < 128) {
+    /**
+     * Where the JSON number starting at {@code start} ends: {@code -?digits(.digits)?([eE][+-]?digits)?} with ASCII
+     * digits (leading zeros are read too). When the text is no number, {@code -1 - p} where p is the position that
+     * needed a digit. Shared with readers that scan numbers themselves, so they accept exactly what this reader
+     * accepts.
+     */
+    public static int numberEnd(CharSequence text, int start) {
+        int pos = start;
+        int n = text.length();
+        if (pos < n && text.charAt(pos) == '-') {
             pos++;
         }
-        if (pos == start) {
-            throw error("expected a digit");
+        pos = digitsEnd(text, pos);
+        if (pos >= 0 && pos < n && text.charAt(pos) == '.') {
+            pos = digitsEnd(text, pos + 1);
         }
+        if (pos >= 0 && pos < n && (text.charAt(pos) == 'e' || text.charAt(pos) == 'E')) {
+            pos++;
+            if (pos < n && (text.charAt(pos) == '+' || text.charAt(pos) == '-')) {
+                pos++;
+            }
+            pos = digitsEnd(text, pos);
+        }
+        return pos;
+    }
+
+    /** The end of the run of at least one ASCII digit at {@code pos}, or {@code -1 - pos} when there is none. */
+    private static int digitsEnd(CharSequence text, int pos) {
+        int start = pos;
+        while (pos < text.length() && text.charAt(pos) >= '0' && text.charAt(pos) <= '9') {
+            pos++;
+        }
+        return pos == start ? -1 - pos : pos;
     }
 
     private void literal(String word) {

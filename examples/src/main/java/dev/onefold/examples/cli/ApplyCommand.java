@@ -1,6 +1,7 @@
 package dev.onefold.examples.cli;
 
 import dev.onefold.archive.ApplyReport;
+import dev.onefold.avro.AvroRecordAccess;
 import dev.onefold.avro.AvroDataset;
 import java.io.PrintStream;
 import java.nio.file.Path;
@@ -49,7 +50,8 @@ public final class ApplyCommand {
             Progress progress) {
         InputFiles.checkReadable(files);
         ArchiveDirectory.InputSchema reading = archive.inputSchema(input.schema());
-        try (InputFiles records = new InputFiles(files, reading.lines(), archive.dataset().access(), reading.toNewest(),
+        AvroRecordAccess newest = archive.dataset().access();
+        try (InputFiles records = new InputFiles(files, (line, where) -> reading.parseRow(line, where, newest), newest,
                 progress);
                 RejectsFile rejects = RejectsFile.open(rejectsFile, archive.dataset().schema())) {
             ApplyReport r = archive.archive().apply(records, "input", rejects);

@@ -4,9 +4,11 @@ import dev.onefold.OnefoldException;
 import dev.onefold.archive.Archive;
 import dev.onefold.avro.AvroDataset;
 import dev.onefold.avro.AvroPayloadCodec;
+import dev.onefold.avro.AvroRecordAccess;
 import dev.onefold.avro.DecodeLimits;
 import dev.onefold.avro.JsonLines;
 import dev.onefold.avro.SchemaVersions;
+import dev.onefold.record.Row;
 import java.io.IOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.FileAlreadyExistsException;
@@ -14,6 +16,7 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.function.Supplier;
 import java.util.function.UnaryOperator;
 import java.util.stream.Stream;
 import org.apache.avro.AvroRuntimeException;
@@ -172,13 +175,27 @@ public final class ArchiveDirectory {
     public InputSchema inputSchema(Schema writer) {
         Schema newest = versions.latest();
         if (AvroPayloadCodec.fingerprint(writer) == AvroPayloadCodec.fingerprint(newest)) {
-            return new InputSchema(JsonLines.of(newest), UnaryOperator.identity());
+            return new InputSchema(JsonLines.of(newest), UnaryOperator.identity(), true);
         }
         AvroPayloadCodec from = AvroPayloadCodec.of(writer);
         AvroPayloadCodec to = versions.codec(DecodeLimits.DEFAULT);
-        return new InputSchema(JsonLines.of(writer), record -> to.decodeRecord(from.encodeRecord(record)));
+        return new InputSchema(JsonLines.of(writer), record -> to.decodeRecord(from.encodeRecord(record)), false);
     }
 
-    /** A JSON lines parser for one schema version and the step from its records to the newest version's. */
-    public record InputSchema(JsonLines lines, UnaryOperator<GenericRecord> toNewest) {}
+    /**
+     * A JSON lines parser for one schema version and the step from its records to the newest version's;
+     * {@code isNewest} when the version is the newest itself (the step is then the identity).
+     */
+    public record InputSchema(JsonLines lines, UnaryOperator<GenericRecord> toNewest, boolean isNewest) {
+        /**
+         * One line of this version as a row of the newest version: read straight into a row when this is the
+         * newest version, else parsed into a record and resolved through Avro.
+         *
+         * @param where names the line in errors; asked for only when needed
+         * @throws dev.onefold.OnefoldException (INVALID_RECORD) naming {@code where}, the field and the reason
+         */
+        public Row parseRow(String line, Supplier<String> where, AvroRecordAccess newest) {
+            return isNewest ? lines.parseRow(line, where) : newest.toRow(toNewest.apply(lines.parse(line, where.get())));
+        }
+    }
 }

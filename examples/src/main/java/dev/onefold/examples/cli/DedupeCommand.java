@@ -8,7 +8,6 @@ import dev.onefold.avro.JsonLines;
 import java.io.PrintStream;
 import java.nio.file.Path;
 import java.util.List;
-import java.util.function.UnaryOperator;
 
 /**
  * {@code onefold dedupe}: deduplicates, merges and orders record files into one output file, streaming: input
@@ -29,8 +28,8 @@ final class DedupeCommand {
                 .build();
         Progress progress = Progress.onTerminal(err, "merging, sorting and writing");
         RunReport report;
-        try (InputFiles input = new InputFiles(in, JsonLines.of(dataset.schema()), dataset.access(), UnaryOperator.identity(),
-                progress); RejectsFile rejects = RejectsFile.open(cl.optionalPath("rejects"), dataset.schema());
+        JsonLines lines = JsonLines.of(dataset.schema());
+        try (InputFiles input = new InputFiles(in, lines::parseRow, dataset.access(), progress); RejectsFile rejects = RejectsFile.open(cl.optionalPath("rejects"), dataset.schema());
                 OutputFile output = OutputFile.create(outFile, dataset.schema(), compression)) {
             BatchReport batch = engine.dedupe(input, "input", r -> output.write(r.row()), rejects);
             output.commit();

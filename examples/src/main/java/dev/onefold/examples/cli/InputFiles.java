@@ -3,13 +3,7 @@ package dev.onefold.examples.cli;
 import dev.onefold.OnefoldException;
 import dev.onefold.avro.AvroRecordAccess;
 import dev.onefold.avro.ContainerFiles;
-import dev.onefold.avro.JsonLines;
-import java.io.BufferedReader;
-import java.io.IOException;
-import java.io.InputStreamReader;
-import java.nio.charset.CharacterCodingException;
-import java.nio.charset.CodingErrorAction;
-import java.nio.charset.StandardCharsets;
+import dev.onefold.record.Row;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
@@ -17,7 +11,7 @@ import java.util.Collections;
 import java.util.Iterator;
 import java.util.List;
 import java.util.NoSuchElementException;
-import java.util.function.UnaryOperator;
+import java.util.function.Supplier;
 import org.apache.avro.generic.GenericRecord;
 
 /**
@@ -25,9 +19,9 @@ import org.apache.avro.generic.GenericRecord;
  * {@link InputRecord}s, in file order and, within a file, in line or record order.
  *
  * <h2>Streaming and parallelism</h2>
- * Lines are read in slices of {@value #SLICE} and each slice is parsed into rows on a worker thread
- * ({@link SliceWorkers}) while the caller consumes earlier slices, so memory is bounded by the slices ahead,
- * never by the file. Avro records are decoded on the caller's thread (Avro's reader
+ * JSON lines are read as blocks of whole lines of bytes ({@link LineBlocks}) and each block is decoded and parsed
+ * into rows on a worker thread ({@link SliceWorkers}) while the caller consumes earlier blocks, so memory is
+ * bounded by the blocks ahead, never by the file. Avro records are decoded on the caller's thread (Avro's reader
  * is sequential) and converted to rows on the workers. The output order is the input order whatever the timing.
  *
  * <h2>Errors</h2>
@@ -42,33 +36,37 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     static final int SLICE = 2048;
 
     private final List<Path> files;
-    private final JsonLines lines;
+    private final LineParser lines;
     private final AvroRecordAccess target;
-    private final UnaryOperator<GenericRecord> toTarget;
     private final Progress progress;
     private final SliceWorkers<InputRecord> workers = new SliceWorkers<>("onefold-input");
     private Iterator<InputRecord> current = Collections.emptyIterator();
     private int nextFile;
     private String fileName;
-    private BufferedReader lineReader;
+    private LineBlocks lineBlocks;
     private ContainerFiles.Reader avroReader;
-    private long lineNo;
     private long index;
     private boolean inputDone;
 
+    /** Reads one JSON line into a row of the dataset's schema; thread-safe, called on the workers. */
+    @FunctionalInterface
+    interface LineParser {
+        /**
+         * @param where names the line (file and line number), built only when needed for a message
+         * @throws OnefoldException (INVALID_RECORD) naming {@code where}, the field and the reason
+         */
+        Row parse(String line, Supplier<String> where);
+    }
+
     /**
-     * @param files    the files, each ending in .jsonl or .avro
-     * @param lines    parses JSON lines under the files' schema
-     * @param target   reads records of the dataset's schema into rows; Avro files are resolved to its schema
-     * @param toTarget turns a record parsed from JSON lines into a record of the target schema (identity when
-     *                 both schemas are the same)
+     * @param files  the files, each ending in .jsonl or .avro
+     * @param lines  reads JSON lines, written under the files' schema, into rows of the target schema
+     * @param target reads records of the dataset's schema into rows; Avro files are resolved to its schema
      */
-    InputFiles(List<Path> files, JsonLines lines, AvroRecordAccess target, UnaryOperator<GenericRecord> toTarget,
-            Progress progress) {
+    InputFiles(List<Path> files, LineParser lines, AvroRecordAccess target, Progress progress) {
         this.files = List.copyOf(files);
         this.lines = lines;
         this.target = target;
-        this.toTarget = toTarget;
         this.progress = progress;
     }
 
@@ -118,10 +116,10 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     /** Starts slices until enough are in flight or the input is exhausted. */
     private void fill() {
         while (!workers.full()) {
-            if (lineReader == null && avroReader == null && !openNext()) {
+            if (lineBlocks == null && avroReader == null && !openNext()) {
                 return;
             }
-            if (lineReader != null) {
+            if (lineBlocks != null) {
                 readLines();
             } else {
                 readAvro();
@@ -135,16 +133,9 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
         }
         Path file = files.get(nextFile++);
         fileName = file.toString();
-        lineNo = 0;
         index = 0;
         if (FileFormat.of(file) == FileFormat.JSON_LINES) {
-            try {
-                lineReader = new BufferedReader(new InputStreamReader(Files.newInputStream(file),
-                        StandardCharsets.UTF_8.newDecoder().onMalformedInput(CodingErrorAction.REPORT)
-                                .onUnmappableCharacter(CodingErrorAction.REPORT)), 1 << 16);
-            } catch (IOException e) {
-                throw new OnefoldException(OnefoldException.Kind.IO, fileName + ": cannot open: " + e.getMessage(), e);
-            }
+            lineBlocks = LineBlocks.open(file);
         } else {
             avroReader = ContainerFiles.open(file, target.avroSchema());
         }
@@ -152,49 +143,31 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     }
 
     private void readLines() {
-        List<String> texts = new ArrayList<>(SLICE);
-        long[] numbers = new long[SLICE];
-        long firstIndex = index;
-        try {
-            String text;
-            while (texts.size() < SLICE && (text = lineReader.readLine()) != null) {
-                lineNo++;
-                if (!text.isBlank()) {
-                    numbers[texts.size()] = lineNo;
-                    texts.add(text);
-                }
-            }
-            if (texts.size() < SLICE) {
-                lineReader.close();
-                lineReader = null;
-            }
-        } catch (CharacterCodingException e) {
-            throw new OnefoldException(OnefoldException.Kind.IO, fileName + " line " + (lineNo + 1)
-                    + ": not valid UTF-8 text; a JSON lines file must be UTF-8", e);
-        } catch (IOException e) {
-            throw new OnefoldException(OnefoldException.Kind.IO, fileName + ": cannot read: " + e.getMessage(), e);
-        }
-        index += texts.size();
-        if (!texts.isEmpty()) {
-            String file = fileName;
-            workers.submit(() -> parseLines(file, texts, numbers, firstIndex));
+        LineBlocks.Block block = lineBlocks.next();
+        if (block == null) {
+            lineBlocks.close();
+            lineBlocks = null;
+        } else if (block.count() > 0) {
+            workers.submit(() -> parseLines(block));
         }
     }
 
-    private List<InputRecord> parseLines(String file, List<String> texts, long[] numbers, long firstIndex) {
-        List<InputRecord> out = new ArrayList<>(texts.size());
-        for (int i = 0; i < texts.size(); i++) {
-            String where = file + " line " + numbers[i];
-            String text = texts.get(i);
+    private List<InputRecord> parseLines(LineBlocks.Block block) {
+        List<InputRecord> out = new ArrayList<>(block.count());
+        String file = block.file();
+        for (int i = 0; i < block.count(); i++) {
+            long line = block.numbers()[i];
+            long at = block.firstIndex() + i;
+            String text = block.text(i);
             try {
-                GenericRecord record = toTarget.apply(lines.parse(text, where));
-                out.add(InputRecord.read(file, numbers[i], firstIndex + i, target.toRow(record)));
+                out.add(InputRecord.read(file, line, at, lines.parse(text, () -> file + " line " + line)));
             } catch (OnefoldException e) {
                 if (e.kind() != OnefoldException.Kind.INVALID_RECORD) {
                     throw e;
                 }
+                String where = file + " line " + line;
                 String reason = e.getMessage().startsWith(where) ? e.getMessage() : where + ": " + e.getMessage();
-                out.add(InputRecord.unreadable(file, numbers[i], firstIndex + i, reason, text));
+                out.add(InputRecord.unreadable(file, line, at, reason, text));
             }
         }
         return out;
@@ -238,13 +211,11 @@ final class InputFiles implements Iterator<InputRecord>, AutoCloseable {
     public void close() {
         workers.close();
         try {
-            if (lineReader != null) {
-                lineReader.close();
+            if (lineBlocks != null) {
+                lineBlocks.close();
             }
-        } catch (IOException e) {
-            throw new OnefoldException(OnefoldException.Kind.IO, fileName + ": cannot close: " + e.getMessage(), e);
         } finally {
-            lineReader = null;
+            lineBlocks = null;
             if (avroReader != null) {
                 avroReader.close();
                 avroReader = null;

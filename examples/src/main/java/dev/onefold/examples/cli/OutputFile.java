@@ -5,9 +5,11 @@ import dev.onefold.avro.AvroRecordAccess;
 import dev.onefold.avro.ContainerFiles;
 import dev.onefold.avro.JsonLines;
 import dev.onefold.record.Row;
-import dev.onefold.spi.RecordAccess;
-import java.io.BufferedWriter;
+import java.io.BufferedOutputStream;
 import java.io.IOException;
+import java.io.OutputStream;
+import java.nio.CharBuffer;
+import java.nio.charset.CharacterCodingException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -23,14 +25,18 @@ import org.apache.avro.generic.GenericRecord;
  * commit deletes it, so a failed run never leaves a half-written output under the target's name.
  *
  * <p>Rows are converted (to JSON text, or to Avro records) in slices on worker threads ({@link SliceWorkers})
- * and written in the order they came. Single-threaded for the caller; must be closed. Cost: one conversion and
- * one write per record.
+ * and written in the order they came; a slice of JSON lines becomes one block of text, written with one call.
+ * Single-threaded for the caller; must be closed. Cost: one conversion per record and one write per slice
+ * (JSON lines) or per record (Avro).
  */
 final class OutputFile implements AutoCloseable {
     private final Path target;
     private final Path temp;
-    private final BufferedWriter lines;
-    private final RecordAccess<String> lineAccess;
+    /** Bytes buffered before the file: a few slices of text, so writes reach the disk in large blocks. */
+    private static final int WRITE_BUFFER = 1 << 20;
+
+    private final OutputStream lines;
+    private final JsonLines json;
     private final ContainerFiles.Writer avro;
     private final AvroRecordAccess access;
     private final SliceWorkers<Object> workers = new SliceWorkers<>("onefold-output");
@@ -49,16 +55,16 @@ final class OutputFile implements AutoCloseable {
             throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot create: " + e.getMessage(), e);
         }
         if (format == FileFormat.JSON_LINES) {
-            this.lineAccess = JsonLines.of(schema).lineAccess();
+            this.json = JsonLines.of(schema);
             this.access = null;
             this.avro = null;
             try {
-                this.lines = Files.newBufferedWriter(temp, StandardCharsets.UTF_8);
+                this.lines = new BufferedOutputStream(Files.newOutputStream(temp), WRITE_BUFFER);
             } catch (IOException e) {
                 throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
             }
         } else {
-            this.lineAccess = null;
+            this.json = null;
             this.lines = null;
             this.access = AvroRecordAccess.of(schema);
             this.avro = ContainerFiles.create(temp, schema, compression);
@@ -84,21 +90,54 @@ final class OutputFile implements AutoCloseable {
     private void submitSlice() {
         List<Row> rows = slice;
         slice = new ArrayList<>(InputFiles.SLICE);
-        workers.submit(() -> {
-            List<Object> out = new ArrayList<>(rows.size());
-            for (Row r : rows) {
-                out.add(lines != null ? lineAccess.fromRow(r) : access.fromRow(r));
+        workers.submit(() -> lines != null ? List.of(text(rows)) : records(rows));
+    }
+
+    /** The slice's rows as JSON lines in UTF-8, each ended by a line feed. */
+    private byte[] text(List<Row> rows) {
+        StringBuilder sb = new StringBuilder(rows.size() * 128);
+        for (Row r : rows) {
+            json.writeRow(r, sb);
+            sb.append('\n');
+        }
+        String text = sb.toString();
+        byte[] bytes = text.getBytes(StandardCharsets.UTF_8);
+        if (bytes.length != text.length()) {
+            refuseUnpairedSurrogates(text);
+        }
+        return bytes;
+    }
+
+    /**
+     * getBytes would write an unpaired surrogate (a string read from a "\ud800" escape) as '?': refuse it with the
+     * UTF-8 encoder's own error instead, as a character writer does.
+     */
+    private void refuseUnpairedSurrogates(String text) {
+        for (int i = 0; i < text.length(); i++) {
+            if (Character.isSurrogate(text.charAt(i))) {
+                try {
+                    StandardCharsets.UTF_8.newEncoder().encode(CharBuffer.wrap(text));
+                } catch (CharacterCodingException e) {
+                    throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
+                }
+                return;
             }
-            return out;
-        });
+        }
+    }
+
+    private List<Object> records(List<Row> rows) {
+        List<Object> out = new ArrayList<>(rows.size());
+        for (Row r : rows) {
+            out.add(access.fromRow(r));
+        }
+        return out;
     }
 
     private void emit(List<Object> converted) {
         for (Object o : converted) {
             if (lines != null) {
                 try {
-                    lines.write((String) o);
-                    lines.write('\n');
+                    lines.write((byte[]) o);
                 } catch (IOException e) {
                     throw new OnefoldException(OnefoldException.Kind.IO, target + ": cannot write: " + e.getMessage(), e);
                 }

@@ -14,7 +14,6 @@ import java.nio.file.Path;
 import java.util.List;
 import java.util.Spliterator;
 import java.util.Spliterators;
-import java.util.function.UnaryOperator;
 import java.util.stream.StreamSupport;
 
 /**
@@ -77,7 +76,7 @@ public final class ReconcileCommand {
     public static DigestSource fileSource(Path file, AvroDataset dataset, RecordDigests.Mode mode) {
         JsonLines lines = JsonLines.of(dataset.schema());
         return RecordDigests.builder(file.toString(), dataset.spec(), InputRecord.access(dataset.access().schema()), () -> {
-            InputFiles in = new InputFiles(List.of(file), lines, dataset.access(), UnaryOperator.identity(), Progress.hidden());
+            InputFiles in = new InputFiles(List.of(file), lines::parseRow, dataset.access(), Progress.hidden());
             return StreamSupport.stream(Spliterators.spliteratorUnknownSize(in, Spliterator.ORDERED | Spliterator.NONNULL),
                     false).onClose(in::close);
         }, mode).build();

@@ -3,7 +3,6 @@ package dev.onefold.examples.cli;
 import dev.onefold.OnefoldException;
 import dev.onefold.Rejection;
 import dev.onefold.avro.JsonLines;
-import dev.onefold.spi.RecordAccess;
 import java.io.BufferedWriter;
 import java.io.IOException;
 import java.nio.charset.StandardCharsets;
@@ -34,13 +33,13 @@ final class RejectsFile implements Consumer<Rejection>, AutoCloseable {
 
     private final Path path;
     private final BufferedWriter out;
-    private final RecordAccess<String> lineAccess;
+    private final JsonLines json;
     private final Map<String, Long> reasons = new TreeMap<>();
     private long count;
 
     private RejectsFile(Path path, Schema schema) {
         this.path = path;
-        this.lineAccess = JsonLines.of(schema).lineAccess();
+        this.json = JsonLines.of(schema);
         if (path == null) {
             this.out = null;
         } else {
@@ -72,7 +71,7 @@ final class RejectsFile implements Consumer<Rejection>, AutoCloseable {
             line.put("file", r.file());
             line.put(r.line() > 0 ? "line" : "index", r.line() > 0 ? r.line() : r.index());
             line.put("reason", rejection.reason());
-            line.put("record", r.row() != null ? new JsonText.Raw(lineAccess.fromRow(r.row())) : r.text());
+            line.put("record", r.row() != null ? new JsonText.Raw(json.writeRow(r.row())) : r.text());
         } else {
             line.put("file", rejection.source());
             line.put("index", rejection.position());
