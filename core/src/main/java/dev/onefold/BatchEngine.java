@@ -82,7 +82,7 @@ public final class BatchEngine<R> {
             Consumer<Rejection> rejects) {
         Objects.requireNonNull(records, "records");
         long in = 0;
-        HashConsolidator fast = new HashConsolidator(dataset, budget / 2, parallel);
+        HashConsolidator fast = new HashConsolidator(dataset, source, budget / 2, parallel);
         Consolidator spilling = null;
         try (Publisher publisher = new Publisher(dataset, budget / 2, spillDir, parallel)) {
             while (records.hasNext()) {
@@ -98,11 +98,11 @@ public final class BatchEngine<R> {
                     if (spilling != null) {
                         spilling.reject(source, position, e.getMessage(), record, rejects);
                     } else {
-                        fast.reject(source, position, e.getMessage(), record);
+                        fast.reject(position, e.getMessage(), record);
                     }
                     continue;
                 }
-                if (spilling == null && !fast.add(row, source, position, record)) {
+                if (spilling == null && !fast.add(row, position, record)) {
                     // the batch outgrew memory: continue on the sorting, spilling path
                     spilling = new Consolidator(dataset, budget / 2, spillDir, parallel);
                     fast.transferTo(spilling, rejects);

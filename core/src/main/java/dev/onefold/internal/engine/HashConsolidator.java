@@ -50,6 +50,8 @@ public final class HashConsolidator {
     private static final long COLUMN_BYTES = 120;
 
     private final BoundDataset dataset;
+    /** Where every record of the batch comes from; records are numbered from 0 in input order. */
+    private final String source;
     private final Policy<Object> policy;
     /** Set for the last-writer policy, whose keys fold by version alone unless versions tie. */
     private final LastWriterPolicy lastWriter;
@@ -63,8 +65,13 @@ public final class HashConsolidator {
     private long accepted;
     private long rejected;
 
-    public HashConsolidator(BoundDataset dataset, long budgetBytes, boolean parallel) {
+    /**
+     * @param source names the batch in rejections; the record at position p is the p-th record {@link #add}ed
+     *               or {@link #reject}ed, counting from 0
+     */
+    public HashConsolidator(BoundDataset dataset, String source, long budgetBytes, boolean parallel) {
         this.dataset = dataset;
+        this.source = source;
         this.policy = dataset.policy();
         Object built = policy;
         this.lastWriter = built instanceof LastWriterPolicy lw ? lw : null;
@@ -77,29 +84,33 @@ public final class HashConsolidator {
      *
      * @return false, without buffering, when the row would exceed the memory budget
      */
-    public boolean add(Row row, String source, long position, Object original) {
+    public boolean add(Row row, long position, Object original) {
         long size = RowSizes.estimate(row) + COLUMN_BYTES;
         if (bytes + size > budget && n > 0) {
             return false;
         }
-        slot().put(row, source, position, original, null);
+        slot(position).put(row, original, null);
         bytes += size;
         return true;
     }
 
     /** Records a record that could not be read as a row; reported in input order with the others. */
-    public void reject(String source, long position, String reason, Object original) {
-        slot().put(null, source, position, original, reason);
+    public void reject(long position, String reason, Object original) {
+        slot(position).put(null, original, reason);
     }
 
-    /** The block with room for the next record, sealing the previous one when it is full. */
-    private Block slot() {
+    /** The block with room for the record at {@code position}, sealing the previous one when it is full. */
+    private Block slot(long position) {
+        if (position != n) {
+            throw new IllegalStateException("record at position " + position + " given as record " + n
+                    + " of the batch: records must come in input order, none skipped");
+        }
         if (filling == null || filling.size == BLOCK) {
             if (filling != null) {
                 seal(filling);
             }
             // a batch that fills one block is large: later blocks start at full size instead of growing
-            filling = new Block(lastWriter != null, blocks.isEmpty() ? 16 : BLOCK);
+            filling = new Block(lastWriter != null, position, blocks.isEmpty() ? 16 : BLOCK);
             blocks.add(filling);
         }
         n++;
@@ -137,9 +148,9 @@ public final class HashConsolidator {
             }
             for (int j = 0; j < b.size; j++) {
                 if (b.rows[j] == null) {
-                    target.reject(b.sources[j], b.positions[j], b.reasons[j], b.originals[j], rejects);
+                    target.reject(source, b.position(j), b.reason(j), b.originals[j], rejects);
                 } else {
-                    target.add(b.rows[j], b.sources[j], b.positions[j], b.originals[j], rejects);
+                    target.add(b.rows[j], source, b.position(j), b.originals[j], rejects);
                 }
             }
         }
@@ -176,7 +187,8 @@ public final class HashConsolidator {
         Shard[] done = new Shard[shards];
         int[] next = new int[n];
         IntStream shardRange = IntStream.range(0, shards);
-        (shards > 1 ? shardRange.parallel() : shardRange).forEach(s -> done[s] = new Shard(all, next, s, shards).run());
+        Buffered buffered = new Buffered(all);
+        (shards > 1 ? shardRange.parallel() : shardRange).forEach(s -> done[s] = new Shard(buffered, next, s, shards).run());
         KeyResolver totals = new KeyResolver(dataset);
         VisibleRows[] visible = new VisibleRows[shards];
         for (int s = 0; s < shards; s++) {
@@ -190,9 +202,9 @@ public final class HashConsolidator {
     private void reportRejections(Block[] all, Consumer<Rejection> rejects) {
         for (Block b : all) {
             for (int j = 0; j < b.size; j++) {
-                if (b.reasons[j] != null) {
+                if (b.reason(j) != null) {
                     rejected++;
-                    rejects.accept(new Rejection(b.sources[j], b.positions[j], b.reasons[j], b.originals[j]));
+                    rejects.accept(new Rejection(source, b.position(j), b.reason(j), b.originals[j]));
                 } else {
                     accepted++;
                 }
@@ -212,10 +224,11 @@ public final class HashConsolidator {
     private final class Block {
         private final ByteWriter slab;
         private final boolean byVersion;
+        /** The block's first record's position; the others follow one by one. */
+        final long firstPosition;
         Row[] rows;
-        long[] positions;
         Object[] originals;
-        String[] sources;
+        /** Why each record was rejected; allocated with the block's first rejection. */
         String[] reasons;
         int[] orderStart;
         int[] keyStart;
@@ -230,31 +243,44 @@ public final class HashConsolidator {
         boolean extracted;
         ForkJoinTask<?> extraction;
 
-        Block(boolean byVersion, int capacity) {
+        Block(boolean byVersion, long firstPosition, int capacity) {
             this.byVersion = byVersion;
+            this.firstPosition = firstPosition;
             slab = new ByteWriter(capacity * 16);
             rows = new Row[capacity];
-            positions = new long[capacity];
             originals = new Object[capacity];
-            sources = new String[capacity];
-            reasons = new String[capacity];
         }
 
-        void put(Row row, String source, long position, Object original, String reason) {
+        void put(Row row, Object original, String reason) {
             if (size == rows.length) {
                 int cap = Math.min(BLOCK, size * 4);
                 rows = Arrays.copyOf(rows, cap);
-                positions = Arrays.copyOf(positions, cap);
                 originals = Arrays.copyOf(originals, cap);
-                sources = Arrays.copyOf(sources, cap);
-                reasons = Arrays.copyOf(reasons, cap);
+                if (reasons != null) {
+                    reasons = Arrays.copyOf(reasons, cap);
+                }
             }
             rows[size] = row;
-            positions[size] = position;
             originals[size] = original;
-            sources[size] = source;
-            reasons[size] = reason;
+            if (reason != null) {
+                reject(size, reason);
+            }
             size++;
+        }
+
+        long position(int j) {
+            return firstPosition + j;
+        }
+
+        String reason(int j) {
+            return reasons == null ? null : reasons[j];
+        }
+
+        private void reject(int j, String reason) {
+            if (reasons == null) {
+                reasons = new String[rows.length];
+            }
+            reasons[j] = reason;
         }
 
         /** Reads every record's columns; a record whose key, version or state is unusable gets its reason. */
@@ -297,7 +323,7 @@ public final class HashConsolidator {
                 if (e.kind() != OnefoldException.Kind.INVALID_RECORD) {
                     throw e;
                 }
-                reasons[j] = e.getMessage();
+                reject(j, e.getMessage());
                 // a rejected record's partial bytes stay in the slab unreferenced
                 return;
             }
@@ -311,14 +337,47 @@ public final class HashConsolidator {
         }
     }
 
+    /** The buffered records by index: record {@code i} is record {@code i % BLOCK} of block {@code i / BLOCK}. */
+    private static final class Buffered implements VisibleRows.Records {
+        private final Block[] all;
+
+        Buffered(Block[] all) {
+            this.all = all;
+        }
+
+        Block block(int i) {
+            return all[i >>> BLOCK_BITS];
+        }
+
+        @Override
+        public Row row(int i) {
+            return block(i).rows[i & (BLOCK - 1)];
+        }
+
+        @Override
+        public byte[] slab(int i) {
+            return block(i).slabBytes;
+        }
+
+        @Override
+        public int orderStart(int i) {
+            return block(i).orderStart[i & (BLOCK - 1)];
+        }
+
+        @Override
+        public int orderEnd(int i) {
+            return block(i).end[i & (BLOCK - 1)];
+        }
+    }
+
     /**
      * The keys whose hash falls in one shard: grouped in an open-addressing table, folded, resolved to visible
      * rows with their order bytes. Shards split keys, never records of one key, so they run in parallel and
      * their counts add up. Keys are resolved in the order of their first record, so rows are read roughly in
-     * the order they were buffered, which is kind to the caches. Record {@code i} is record
-     * {@code i % BLOCK} of block {@code i / BLOCK}.
+     * the order they were buffered, which is kind to the caches.
      */
     private final class Shard {
+        private final Buffered buffered;
         private final Block[] all;
         private final int shard;
         private final int shardBits;
@@ -332,12 +391,13 @@ public final class HashConsolidator {
         private final int[] next;
         private long[] versionScratch = new long[8];
 
-        Shard(Block[] all, int[] next, int shard, int shards) {
-            this.all = all;
+        Shard(Buffered buffered, int[] next, int shard, int shards) {
+            this.buffered = buffered;
+            this.all = buffered.all;
             this.next = next;
             this.shard = shard;
             this.shardBits = Integer.numberOfTrailingZeros(shards);
-            this.visible = new VisibleRows(n / shards + 16);
+            this.visible = new VisibleRows(buffered, n / shards + 16);
         }
 
         private boolean mine(long hash) {
@@ -345,7 +405,7 @@ public final class HashConsolidator {
         }
 
         private Block block(int i) {
-            return all[i >>> BLOCK_BITS];
+            return buffered.block(i);
         }
 
         private boolean sameKey(int i, int k) {
@@ -371,7 +431,7 @@ public final class HashConsolidator {
                 Block b = all[bi];
                 for (int j = 0; j < b.size; j++) {
                     long hash = b.hashes[j];
-                    if (b.reasons[j] != null || !mine(hash)) {
+                    if (!mine(hash) || b.reason(j) != null) {
                         continue;
                     }
                     int i = (bi << BLOCK_BITS) | j;
@@ -424,16 +484,14 @@ public final class HashConsolidator {
                 } else {
                     Block f = block(first);
                     int j = first & (BLOCK - 1);
-                    visible.add(dataset, r, f.slabBytes, f.keyStart[j], f.end[j]);
+                    visible.addMerged(dataset, r, f.slabBytes, f.keyStart[j], f.end[j]);
                 }
             }
         }
 
         /** Record i's row as a visible row, with the order bytes read with it. */
         private void addInputRow(int i) {
-            Block b = block(i);
-            int j = i & (BLOCK - 1);
-            visible.add(b.rows[j], b.slabBytes, b.orderStart[j], b.end[j], b.prefixes[j]);
+            visible.addRecord(i, block(i).prefixes[i & (BLOCK - 1)]);
         }
 
         /** The record of the key starting at {@code first} whose row is {@code row} itself, or -1. */

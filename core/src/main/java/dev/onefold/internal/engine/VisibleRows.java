@@ -7,58 +7,69 @@ import java.util.Arrays;
 import java.util.Comparator;
 
 /**
- * Visible rows collected by one worker of the in-memory path, each with its order bytes (order fields, then the
- * key) as a range of a shared byte slab rather than an array of its own, and the first eight of those bytes as a
- * number. A row's order bytes either already exist (a last-writer winner's, written when its record was read)
- * or are written here into slabs of {@value #SLAB} bytes. {@link #sort} and {@link #merge} order the rows of
- * all workers exactly as {@link OrderedRow#ORDER} does on the spilling path: order bytes, then canonical row
- * bytes (which only siblings of one key need).
+ * Visible rows collected by one worker of the in-memory path, ordered the way {@link OrderedRow#ORDER} orders
+ * them on the spilling path: order bytes (order fields, then the key), then canonical row bytes (which only
+ * siblings of one key need). Most visible rows are input records, whose order bytes were read with them; such
+ * an entry is just the record's index in {@link Records} and the first eight order bytes as a number, 12 bytes.
+ * Rows built by merging get their order bytes written here, into slabs of {@value #SLAB} bytes.
  *
- * <p>Memory: the rows' references plus 24 bytes per row, and the order bytes of merged rows. Not
- * thread-safe; one per worker, sorted by that worker, merged once every worker is done.
+ * <p>Each worker {@link #sort}s its own part (a radix sort of the prefixes, comparing bytes only inside runs of
+ * equal prefixes), so parts sort in parallel; {@link #merge} then interleaves them. Not thread-safe; one per
+ * worker.
  */
 final class VisibleRows {
     private static final int SLAB = 1 << 16;
 
-    private Row[] rows;
-    private byte[][] slabs;
-    private int[] starts;
-    private int[] ends;
+    /** The buffered input records, by index: their rows and where their order bytes are. */
+    interface Records {
+        Row row(int i);
+
+        byte[] slab(int i);
+
+        int orderStart(int i);
+
+        int orderEnd(int i);
+    }
+
+    private final Records records;
+    /** An input record's index, or {@code -1 - m} for merged row m. */
+    private int[] refs;
     private long[] prefixes;
     private int size;
+    private Row[] merged = new Row[0];
+    private byte[][] mergedSlabs = new byte[0][];
+    private int[] mergedStarts = new int[0];
+    private int[] mergedEnds = new int[0];
+    private int mergedCount;
     private final ByteWriter scratch = new ByteWriter(256);
     private byte[] slab = new byte[0];
     private int slabUsed;
 
-    VisibleRows(int expected) {
+    VisibleRows(Records records, int expected) {
+        this.records = records;
         int cap = Math.max(16, expected);
-        rows = new Row[cap];
-        slabs = new byte[cap][];
-        starts = new int[cap];
-        ends = new int[cap];
+        refs = new int[cap];
         prefixes = new long[cap];
     }
 
-    /** Adds a row whose order bytes are {@code slab[start, end)}, their first eight bytes being {@code prefix}. */
-    void add(Row row, byte[] slab, int start, int end, long prefix) {
-        if (size == rows.length) {
+    private void add(int ref, long prefix) {
+        if (size == refs.length) {
             int cap = size + (size >> 1);
-            rows = Arrays.copyOf(rows, cap);
-            slabs = Arrays.copyOf(slabs, cap);
-            starts = Arrays.copyOf(starts, cap);
-            ends = Arrays.copyOf(ends, cap);
+            refs = Arrays.copyOf(refs, cap);
             prefixes = Arrays.copyOf(prefixes, cap);
         }
-        rows[size] = row;
-        slabs[size] = slab;
-        starts[size] = start;
-        ends[size] = end;
+        refs[size] = ref;
         prefixes[size] = prefix;
         size++;
     }
 
+    /** Adds input record {@code i}'s row, whose order bytes were read with it and begin with {@code prefix}. */
+    void addRecord(int i, long prefix) {
+        add(i, prefix);
+    }
+
     /** Adds a merged row of the key whose bytes are {@code key[keyStart, keyEnd)}, writing its order bytes. */
-    void add(BoundDataset dataset, Row row, byte[] key, int keyStart, int keyEnd) {
+    void addMerged(BoundDataset dataset, Row row, byte[] key, int keyStart, int keyEnd) {
         scratch.reset();
         dataset.writeOrderFields(scratch, row);
         scratch.write(key, keyStart, keyEnd - keyStart);
@@ -68,48 +79,50 @@ final class VisibleRows {
             slabUsed = 0;
         }
         System.arraycopy(scratch.array(), 0, slab, slabUsed, length);
-        add(row, slab, slabUsed, slabUsed + length, PrefixRadixSort.prefix(slab, slabUsed, slabUsed + length));
+        if (mergedCount == merged.length) {
+            int cap = Math.max(16, mergedCount * 2);
+            merged = Arrays.copyOf(merged, cap);
+            mergedSlabs = Arrays.copyOf(mergedSlabs, cap);
+            mergedStarts = Arrays.copyOf(mergedStarts, cap);
+            mergedEnds = Arrays.copyOf(mergedEnds, cap);
+        }
+        merged[mergedCount] = row;
+        mergedSlabs[mergedCount] = slab;
+        mergedStarts[mergedCount] = slabUsed;
+        mergedEnds[mergedCount] = slabUsed + length;
+        add(-1 - mergedCount, PrefixRadixSort.prefix(slab, slabUsed, slabUsed + length));
+        mergedCount++;
         slabUsed += length;
     }
 
-    /**
-     * Sorts this part's rows by order bytes, then canonical row bytes: a radix sort of the prefixes, then a
-     * comparison of the slab bytes inside each run of equal prefixes. Each worker sorts its own part, so the
-     * parts sort in parallel and {@link #merge} only interleaves them.
-     */
+    private Row row(int ref) {
+        return ref >= 0 ? records.row(ref) : merged[-1 - ref];
+    }
+
+    /** Sorts this part by order bytes, then canonical row bytes. */
     void sort() {
         PrefixRadixSort.Sorted byPrefix = PrefixRadixSort.sort(prefixes, size);
         long[] keys = byPrefix.prefixes();
         int[] idx = byPrefix.index();
+        int[] sortedRefs = new int[size];
+        for (int i = 0; i < size; i++) {
+            sortedRefs[i] = refs[idx[i]];
+        }
         Comparator<Integer> fullOrder = (x, y) -> compare(this, x, this, y);
         int runStart = 0;
         for (int i = 1; i <= size; i++) {
             if (i == size || keys[i] != keys[runStart]) {
                 if (i - runStart > 1) {
-                    sortRun(idx, runStart, i, fullOrder);
+                    sortRun(sortedRefs, runStart, i, fullOrder);
                 }
                 runStart = i;
             }
         }
-        Row[] sortedRows = new Row[size];
-        byte[][] sortedSlabs = new byte[size][];
-        int[] sortedStarts = new int[size];
-        int[] sortedEnds = new int[size];
-        for (int i = 0; i < size; i++) {
-            int from = idx[i];
-            sortedRows[i] = rows[from];
-            sortedSlabs[i] = slabs[from];
-            sortedStarts[i] = starts[from];
-            sortedEnds[i] = ends[from];
-        }
-        rows = sortedRows;
-        slabs = sortedSlabs;
-        starts = sortedStarts;
-        ends = sortedEnds;
+        refs = sortedRefs;
         prefixes = keys;
     }
 
-    /** Interleaves parts, each already {@link #sort sorted}, into one sequence in the same order. */
+    /** Interleaves parts, each already {@link #sort sorted}, into one sequence of rows in the same order. */
     static Row[] merge(VisibleRows[] parts) {
         int total = 0;
         for (VisibleRows p : parts) {
@@ -124,32 +137,45 @@ final class VisibleRows {
                     best = p;
                 }
             }
-            out[o] = parts[best].rows[at[best]++];
+            VisibleRows part = parts[best];
+            out[o] = part.row(part.refs[at[best]++]);
         }
         return out;
     }
 
     private static boolean before(VisibleRows a, int i, VisibleRows b, int j) {
         int c = Long.compareUnsigned(a.prefixes[i], b.prefixes[j]);
-        return (c != 0 ? c : compare(a, i, b, j)) < 0;
+        return (c != 0 ? c : compare(a, a.refs[i], b, b.refs[j])) < 0;
     }
 
-    /** Sorts {@code idx[from, to)}, a run of equal prefixes, by the full order bytes, then row bytes. */
-    private static void sortRun(int[] idx, int from, int to, Comparator<Integer> fullOrder) {
+    /** Sorts {@code refs[from, to)}, a run of equal prefixes, by the full order bytes, then row bytes. */
+    private static void sortRun(int[] refs, int from, int to, Comparator<Integer> fullOrder) {
         Integer[] run = new Integer[to - from];
         for (int i = from; i < to; i++) {
-            run[i - from] = idx[i];
+            run[i - from] = refs[i];
         }
         Arrays.sort(run, fullOrder);
         for (int i = from; i < to; i++) {
-            idx[i] = run[i - from];
+            refs[i] = run[i - from];
         }
     }
 
-    /** Order bytes, then canonical row bytes, of row i of part a and row j of part b. */
-    private static int compare(VisibleRows a, int i, VisibleRows b, int j) {
-        int c = Arrays.compareUnsigned(a.slabs[i], a.starts[i], a.ends[i], b.slabs[j], b.starts[j], b.ends[j]);
+    /** Order bytes, then canonical row bytes, of entry {@code x} of part a and entry {@code y} of part b. */
+    private static int compare(VisibleRows a, int x, VisibleRows b, int y) {
+        int c = Arrays.compareUnsigned(a.slab(x), a.start(x), a.end(x), b.slab(y), b.start(y), b.end(y));
         // equal order bytes mean one key's siblings: their canonical bytes decide, as on the spilling path
-        return c != 0 ? c : Arrays.compareUnsigned(RowCodec.encode(a.rows[i]), RowCodec.encode(b.rows[j]));
+        return c != 0 ? c : Arrays.compareUnsigned(RowCodec.encode(a.row(x)), RowCodec.encode(b.row(y)));
+    }
+
+    private byte[] slab(int ref) {
+        return ref >= 0 ? records.slab(ref) : mergedSlabs[-1 - ref];
+    }
+
+    private int start(int ref) {
+        return ref >= 0 ? records.orderStart(ref) : mergedStarts[-1 - ref];
+    }
+
+    private int end(int ref) {
+        return ref >= 0 ? records.orderEnd(ref) : mergedEnds[-1 - ref];
     }
 }
