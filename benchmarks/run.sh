@@ -82,7 +82,8 @@ machine > "$raw/machine.txt"
 # iterations by profile and size: single-shot calls, so small batches need more of them to warm up the JIT
 iterations() { # size -> "warmups measurements"
   if [ "$profile" = smoke ]; then echo "0 1"; return; fi
-  if [ "$1" -le 200000 ]; then echo "5 5"; elif [ "$1" -le 2000000 ]; then echo "1 3"; else echo "1 2"; fi
+  # at 1M a single warmup call left the JIT still compiling the engine's loops in the first measured calls
+  if [ "$1" -le 200000 ]; then echo "5 5"; elif [ "$1" -le 2000000 ]; then echo "3 5"; else echo "2 3"; fi
 }
 
 # JMH takes a machine-wide lock so that two measuring runs never overlap; a smoke run measures nothing, so it

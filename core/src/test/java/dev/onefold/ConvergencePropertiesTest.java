@@ -142,6 +142,24 @@ class ConvergencePropertiesTest {
                 "anchor survives encoding");
     }
 
+    /**
+     * The in-memory path merges two states the policy calls surely distinct without encoding them, in whatever
+     * order they come; that is only the canonical fold if their bytes do differ and merge ignores argument order.
+     */
+    @Property(tries = 1000)
+    void surelyDistinct_meansDifferentBytesAndMergeInEitherOrder(@ForAll PolicyCase policy,
+            @ForAll("sameKeyTriples") List<Row> rows) {
+        Policy<Object> p = Folding.bind(Fixtures.spec(policy)).policy();
+        Object a = p.lift(rows.get(0));
+        Object b = p.lift(rows.get(1));
+        net.jqwik.api.Assume.that(p.surelyDistinct(a, b));
+        assertTrue(!Arrays.equals(p.toBytes(a), p.toBytes(b)), "surely distinct states have different bytes");
+        MergeCounts ab = new MergeCounts();
+        MergeCounts ba = new MergeCounts();
+        assertBytes(p, p.merge(a, b, ab), p.merge(b, a, ba), "either order");
+        assertEquals(List.of(ab.duplicates, ab.superseded, ab.conflicts), List.of(ba.duplicates, ba.superseded, ba.conflicts));
+    }
+
     private static void assertBytes(Policy<Object> p, Object x, Object y, String law) {
         assertTrue(Arrays.equals(p.toBytes(x), p.toBytes(y)), law + " law broken");
     }

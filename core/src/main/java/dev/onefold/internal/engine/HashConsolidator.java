@@ -533,10 +533,22 @@ public final class HashConsolidator {
             return winner;
         }
 
-        /** Folds one key's states in ascending state-byte order, exactly as {@link Consolidator} does. */
+        /**
+         * Folds one key's states in ascending state-byte order, exactly as {@link Consolidator} does. Two states
+         * the policy knows to be distinct are merged directly: in canonical order that is the same single merge
+         * ({@link Policy#surelyDistinct}), and encoding both states would cost more than the merge.
+         */
         private Object foldGroup(int first) {
             if (next[first] == 0) {
                 return state(first);
+            }
+            int second = next[first] - 1;
+            if (next[second] == 0) {
+                Object a = state(first);
+                Object b = state(second);
+                if (policy.surelyDistinct(a, b)) {
+                    return policy.merge(a, b, counts);
+                }
             }
             List<byte[]> bytes = new ArrayList<>();
             List<Object> members = new ArrayList<>();

@@ -167,6 +167,15 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
         }
     }
 
+    /**
+     * The state bytes begin with the latest version, so different latest versions mean different bytes; merge
+     * counts by comparing the two latest versions and stamps, which does not depend on argument order.
+     */
+    @Override
+    public boolean surelyDistinct(State a, State b) {
+        return a.latestVersion != b.latestVersion;
+    }
+
     @Override
     public State merge(State a, State b, MergeCounts counts) {
         if (a.latestVersion == b.latestVersion) {

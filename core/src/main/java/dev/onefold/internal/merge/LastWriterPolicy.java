@@ -98,6 +98,12 @@ public final class LastWriterPolicy implements Policy<LastWriterPolicy.State> {
         return c > 0 ? a : b;
     }
 
+    /** Different versions mean different state bytes; merge counts one superseded version either way. */
+    @Override
+    public boolean surelyDistinct(State a, State b) {
+        return a.version != b.version;
+    }
+
     @Override
     public List<Row> visible(State state) {
         return state.deleted ? List.of() : List.of(state.row);

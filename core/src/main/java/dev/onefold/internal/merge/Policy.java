@@ -56,6 +56,17 @@ public interface Policy<S> {
     /** Reads what {@link #write} wrote. */
     S read(ByteReader in);
 
+    /**
+     * Whether two states of one key certainly have different canonical bytes, judged without computing them;
+     * false when unsure. Returning true also promises that {@link #merge} gives the same state and the same
+     * counts in either argument order. Then folding exactly two such states, which in canonical order is one
+     * merge of the smaller into the greater, is one merge in any order, and the in-memory path skips encoding
+     * them. The default is always unsure.
+     */
+    default boolean surelyDistinct(S a, S b) {
+        return false;
+    }
+
     /** Whether merge is a join (all three laws hold); otherwise the engine folds in canonical order. */
     default boolean isJoin() {
         return true;

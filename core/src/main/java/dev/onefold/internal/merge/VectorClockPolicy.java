@@ -229,6 +229,16 @@ public final class VectorClockPolicy implements Policy<VectorClockPolicy.State> 
         return picked(state).row;
     }
 
+    /**
+     * Single versions with different clocks (zero counters dropped) hold different rows, so their state bytes
+     * differ; merge sorts its siblings canonically before counting, so argument order does not matter.
+     */
+    @Override
+    public boolean surelyDistinct(State a, State b) {
+        return a.siblings.size() == 1 && b.siblings.size() == 1
+                && !Arrays.equals(a.siblings.get(0).clockBytes(), b.siblings.get(0).clockBytes());
+    }
+
     @Override
     public boolean hasSiblings(State state) {
         return state.siblings.size() > 1;
