@@ -23,8 +23,9 @@ import java.util.stream.IntStream;
  * policies), while the caller goes on buffering the next block. Then records are grouped by key in
  * open-addressing hash tables, one per shard of the key hashes, in parallel; each key with several records is
  * folded in the same canonical order as {@link Consolidator} (ascending state bytes, exact duplicates skipped),
- * so the folded states and the counts are identical to the sorting path; and the visible rows are ordered as
- * {@link Publisher} orders them.
+ * so the folded states and the counts are identical to the sorting path (two records the policy knows to
+ * differ are merged without encoding them, which is the same single merge); and the visible rows are ordered
+ * as {@link Publisher} orders them.
  *
  * <p>Last-writer keys need no states at all: a key whose versions are distinct is decided by the versions
  * alone (the greatest wins and every other record is superseded, exactly what the fold gives), and its visible
@@ -36,7 +37,8 @@ import java.util.stream.IntStream;
  *
  * <h2>Complexity</h2>
  * O(n) expected for grouping plus O(m log m) per key with m records, and a radix sort of the visible rows.
- * Memory: the buffered rows plus about 60 bytes per record (its columns) and its order and key bytes;
+ * Memory: the buffered rows plus about 120 bytes per record (its columns, the hash tables and the sort) and its
+ * order and key bytes, which is what {@link #add} counts beyond each row's own estimate;
  * {@link #add} refuses rows once the estimate passes the budget so the caller can switch to the spilling path.
  * Not thread-safe; one per batch.
  */
