@@ -115,8 +115,23 @@ public final class ByteWriter {
         return write(bytes);
     }
 
+    /**
+     * A varint length followed by the UTF-8 bytes. ASCII text, the common case, is copied char by char without
+     * the intermediate array {@code getBytes} would make; the bytes are the same.
+     */
     public ByteWriter writeString(String s) {
-        return writeBlob(s.getBytes(StandardCharsets.UTF_8));
+        int n = s.length();
+        for (int i = 0; i < n; i++) {
+            if (s.charAt(i) >= 0x80) {
+                return writeBlob(s.getBytes(StandardCharsets.UTF_8));
+            }
+        }
+        writeVarInt(n);
+        ensure(n);
+        for (int i = 0; i < n; i++) {
+            buf[len++] = (byte) s.charAt(i);
+        }
+        return this;
     }
 
     public byte[] toByteArray() {
