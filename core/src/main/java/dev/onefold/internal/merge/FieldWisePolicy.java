@@ -37,8 +37,51 @@ import java.util.TreeMap;
  */
 public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
 
-    /** A value stamped with the version that contributed it. */
-    public record Stamp(long version, byte[] bytes, Object value) {}
+    /**
+     * A value stamped with the version that contributed it, and the value's bytes that break ties: canonical
+     * bytes, or order-preserving bytes for max and min. Most stamps are compared by version alone, so the bytes
+     * of a lifted value are computed only when a comparison first needs them.
+     */
+    public static final class Stamp {
+        private final long version;
+        private final Object value;
+        private final FieldType type;
+        private final boolean ordered;
+        private byte[] bytes;
+
+        private Stamp(long version, Object value, FieldType type, boolean ordered, byte[] bytes) {
+            this.version = version;
+            this.value = value;
+            this.type = type;
+            this.ordered = ordered;
+            this.bytes = bytes;
+        }
+
+        /** A stamp whose bytes are encoded from the value of {@code type} when first needed. */
+        static Stamp of(long version, FieldType type, boolean ordered, Object value) {
+            return new Stamp(version, value, type, ordered, null);
+        }
+
+        /** A stamp whose bytes are already known. */
+        static Stamp withBytes(long version, byte[] bytes, Object value) {
+            return new Stamp(version, value, null, false, bytes);
+        }
+
+        public long version() {
+            return version;
+        }
+
+        public Object value() {
+            return value;
+        }
+
+        byte[] bytes() {
+            if (bytes == null) {
+                bytes = ordered ? OrderedBytes.encode(type, value) : RowCodec.encodeValue(type, value);
+            }
+            return bytes;
+        }
+    }
 
     /**
      * Per-field state: {@code single} for latest, latest-non-null, first, max, min (null when nothing
@@ -48,25 +91,47 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
 
     /**
      * The merge state of one key. A state lifted from a single record keeps just that record; its per-field
-     * stamps and content hash are built the first time a merge or an encoding needs them, so keys delivered
-     * once cost no more than their record.
+     * stamps are built the first time a merge or an encoding needs them, and the content hash of its latest
+     * record the first time a count or an encoding needs it (a merge of two different versions takes the
+     * newer one's hash without computing it), so keys delivered once cost no more than their record.
      */
     public static final class State {
         private final long latestVersion;
         private final Row single;
+        /** The single-record state whose record is this one's latest, while its hash is not yet known. */
+        private final State hashFrom;
         private volatile FieldState[] fields;
-        private volatile long latestHash;
+        private long latestHash;
+        private volatile boolean hashKnown;
 
         State(long latestVersion, long latestHash, FieldState[] fields) {
             this.latestVersion = latestVersion;
             this.latestHash = latestHash;
+            this.hashKnown = true;
             this.fields = fields;
             this.single = null;
+            this.hashFrom = null;
+        }
+
+        /** A merged state whose latest record is {@code newer}'s; the hash is looked up at most one state away. */
+        State(long latestVersion, State newer, FieldState[] fields) {
+            this.latestVersion = latestVersion;
+            this.fields = fields;
+            this.single = null;
+            if (newer.hashKnown) {
+                this.latestHash = newer.latestHash;
+                this.hashKnown = true;
+                this.hashFrom = null;
+            } else {
+                // newer is a single record's state or points at one, so chains never grow past one link
+                this.hashFrom = newer.single != null ? newer : newer.hashFrom;
+            }
         }
 
         State(long version, Row single) {
             this.latestVersion = version;
             this.single = single;
+            this.hashFrom = null;
         }
 
         public long latestVersion() {
@@ -81,15 +146,17 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
             for (int i = 0; i < rules.length; i++) {
                 lifted[i] = liftField(i, s.latestVersion, s.single.get(i));
             }
-            s.latestHash = XxHash64.hash(RowCodec.encode(s.single));
             s.fields = lifted;
             f = lifted;
         }
         return f;
     }
 
-    private long latestHash(State s) {
-        fields(s);
+    private static long latestHash(State s) {
+        if (!s.hashKnown) {
+            s.latestHash = s.single != null ? XxHash64.hash(RowCodec.encode(s.single)) : latestHash(s.hashFrom);
+            s.hashKnown = true;
+        }
         return s.latestHash;
     }
 
@@ -135,22 +202,22 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
         switch (rules[i]) {
             case LATEST:
             case FIRST:
-                return new FieldState(new Stamp(ver, RowCodec.encodeValue(type, value), value), null);
+                return new FieldState(Stamp.of(ver, type, false, value), null);
             case LATEST_NON_NULL:
-                return new FieldState(value == null ? null : new Stamp(ver, RowCodec.encodeValue(type, value), value), null);
+                return new FieldState(value == null ? null : Stamp.of(ver, type, false, value), null);
             case MAX:
             case MIN:
-                return new FieldState(value == null ? null : new Stamp(ver, OrderedBytes.encode(type, value), value), null);
+                return new FieldState(value == null ? null : Stamp.of(ver, type, true, value), null);
             case UNION: {
                 TreeMap<Object, Stamp> entries = new TreeMap<>(ENTRY_KEYS);
                 if (value instanceof List<?> list) {
                     for (Object e : list) {
                         byte[] b = RowCodec.encodeValue(type.element(), e);
-                        entries.put(b, new Stamp(ver, b, e));
+                        entries.put(b, Stamp.withBytes(ver, b, e));
                     }
                 } else if (value instanceof Map<?, ?> map) {
                     for (Map.Entry<?, ?> e : map.entrySet()) {
-                        entries.put(e.getKey(), new Stamp(ver, RowCodec.encodeValue(type.element(), e.getValue()), e.getValue()));
+                        entries.put(e.getKey(), Stamp.of(ver, type.element(), false, e.getValue()));
                     }
                 }
                 return new FieldState(null, entries);
@@ -158,7 +225,7 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
             case SUM: {
                 TreeMap<Object, Stamp> entries = new TreeMap<>(ENTRY_KEYS);
                 if (value != null) {
-                    entries.put(ver, new Stamp(ver, RowCodec.encodeValue(type, value), value));
+                    entries.put(ver, Stamp.of(ver, type, false, value));
                 }
                 return new FieldState(null, entries);
             }
@@ -191,26 +258,21 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
         for (int i = 0; i < rules.length; i++) {
             out[i] = mergeField(rules[i], fields(a)[i], fields(b)[i]);
         }
-        long lv;
-        long lh;
         if (a.latestVersion != b.latestVersion) {
-            boolean aWins = a.latestVersion > b.latestVersion;
-            lv = aWins ? a.latestVersion : b.latestVersion;
-            lh = aWins ? latestHash(a) : latestHash(b);
-        } else {
-            lv = a.latestVersion;
-            lh = Long.compareUnsigned(latestHash(a), latestHash(b)) >= 0 ? latestHash(a) : latestHash(b);
+            State newer = a.latestVersion > b.latestVersion ? a : b;
+            return new State(newer.latestVersion, newer, out);
         }
-        return new State(lv, lh, out);
+        long lh = Long.compareUnsigned(latestHash(a), latestHash(b)) >= 0 ? latestHash(a) : latestHash(b);
+        return new State(a.latestVersion, lh, out);
     }
 
     private static int byVersionThenBytes(Stamp x, Stamp y) {
         int c = Long.compare(x.version, y.version);
-        return c != 0 ? c : Arrays.compareUnsigned(x.bytes, y.bytes);
+        return c != 0 ? c : Arrays.compareUnsigned(x.bytes(), y.bytes());
     }
 
     private static int byBytesThenVersion(Stamp x, Stamp y) {
-        int c = Arrays.compareUnsigned(x.bytes, y.bytes);
+        int c = Arrays.compareUnsigned(x.bytes(), y.bytes());
         return c != 0 ? c : Long.compare(x.version, y.version);
     }
 
@@ -347,7 +409,7 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
     public void write(ByteWriter out, State state) {
         FieldState[] fs = fields(state);
         out.writeZigZag(state.latestVersion);
-        out.writeLong(state.latestHash);
+        out.writeLong(latestHash(state));
         for (int i = 0; i < rules.length; i++) {
             FieldType type = schema.field(i).type();
             FieldState f = fs[i];
@@ -399,7 +461,7 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
                             entries.put(key, s);
                         } else if (rules[i] == FieldRule.UNION) {
                             Stamp s = readStamp(in, type.element(), false);
-                            entries.put(s.bytes, s);
+                            entries.put(s.bytes(), s);
                         } else {
                             Stamp s = readStamp(in, type, false);
                             entries.put(s.version, s);
@@ -420,7 +482,6 @@ public final class FieldWisePolicy implements Policy<FieldWisePolicy.State> {
     private static Stamp readStamp(ByteReader in, FieldType type, boolean ordered) {
         long v = in.readZigZag();
         Object value = RowCodec.readValue(in, type.nullable());
-        byte[] bytes = ordered ? OrderedBytes.encode(type, value) : RowCodec.encodeValue(type, value);
-        return new Stamp(v, bytes, value);
+        return Stamp.of(v, type, ordered, value);
     }
 }
