@@ -112,7 +112,7 @@ public final class HashConsolidator {
                 seal(filling);
             }
             // a batch that fills one block is large: later blocks start at full size instead of growing
-            filling = new Block(lastWriter != null, position, blocks.isEmpty() ? 16 : BLOCK);
+            filling = new Block(position, blocks.isEmpty() ? 16 : BLOCK);
             blocks.add(filling);
         }
         n++;
@@ -225,7 +225,6 @@ public final class HashConsolidator {
      */
     private final class Block {
         private final ByteWriter slab;
-        private final boolean byVersion;
         /** The block's first record's position; the others follow one by one. */
         final long firstPosition;
         Row[] rows;
@@ -245,8 +244,7 @@ public final class HashConsolidator {
         boolean extracted;
         ForkJoinTask<?> extraction;
 
-        Block(boolean byVersion, long firstPosition, int capacity) {
-            this.byVersion = byVersion;
+        Block(long firstPosition, int capacity) {
             this.firstPosition = firstPosition;
             slab = new ByteWriter(capacity * 16);
             rows = new Row[capacity];
@@ -292,7 +290,7 @@ public final class HashConsolidator {
             end = new int[size];
             hashes = new long[size];
             prefixes = new long[size];
-            if (byVersion) {
+            if (lastWriter != null) {
                 versions = new long[size];
                 deletes = new boolean[size];
             } else {
@@ -315,7 +313,7 @@ public final class HashConsolidator {
                 dataset.writeOrderFields(slab, row);
                 key = slab.length();
                 dataset.writeKey(slab, row);
-                if (byVersion) {
+                if (lastWriter != null) {
                     versions[j] = lastWriter.version(row);
                     deletes[j] = lastWriter.isTombstone(row);
                 } else {
@@ -380,7 +378,6 @@ public final class HashConsolidator {
      */
     private final class Shard {
         private final Buffered buffered;
-        private final Block[] all;
         private final int shard;
         private final int shardBits;
         final MergeCounts counts = new MergeCounts();
@@ -395,7 +392,6 @@ public final class HashConsolidator {
 
         Shard(Buffered buffered, int[] next, int shard, int shards) {
             this.buffered = buffered;
-            this.all = buffered.all;
             this.next = next;
             this.shard = shard;
             this.shardBits = Integer.numberOfTrailingZeros(shards);
@@ -429,6 +425,7 @@ public final class HashConsolidator {
             int[] tail = new int[cap];
             int[] firsts = new int[Math.max(16, (n >> shardBits) + (n >> (shardBits + 3)))];
             int keys = 0;
+            Block[] all = buffered.all;
             for (int bi = 0; bi < all.length; bi++) {
                 Block b = all[bi];
                 for (int j = 0; j < b.size; j++) {
@@ -544,20 +541,16 @@ public final class HashConsolidator {
             if (next[first] == 0) {
                 return state(first);
             }
-            int second = next[first] - 1;
-            if (next[second] == 0) {
-                Object a = state(first);
-                Object b = state(second);
-                if (policy.surelyDistinct(a, b)) {
-                    return policy.merge(a, b, counts);
-                }
-            }
-            List<byte[]> bytes = new ArrayList<>();
             List<Object> members = new ArrayList<>();
             for (int i = first; i >= 0; i = next[i] - 1) {
-                Object state = state(i);
+                members.add(state(i));
+            }
+            if (members.size() == 2 && policy.surelyDistinct(members.get(0), members.get(1))) {
+                return policy.merge(members.get(0), members.get(1), counts);
+            }
+            List<byte[]> bytes = new ArrayList<>(members.size());
+            for (Object state : members) {
                 bytes.add(policy.toBytes(state));
-                members.add(state);
             }
             Integer[] byBytes = new Integer[members.size()];
             for (int m = 0; m < byBytes.length; m++) {

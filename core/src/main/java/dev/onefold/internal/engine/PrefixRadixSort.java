@@ -4,18 +4,21 @@ import java.util.Arrays;
 
 /**
  * Sorts unsigned 64-bit order prefixes with an index riding along: a least-significant-digit radix sort, one
- * pass per byte, skipping passes whose byte is the same for every prefix. Both ways the engine orders visible
- * rows (in memory and before a spill) sort by prefix here first and compare the full order bytes only inside
- * runs of equal prefixes.
+ * pass per byte, skipping passes whose byte is the same for every prefix. The in-memory path sorts its visible
+ * rows by prefix here and compares the full order bytes only inside runs of equal prefixes; {@link #prefix}
+ * also gives the spilling path's {@link OrderedRow} its prefix, so both read the same eight bytes.
  *
  * <p>Linear in the number of prefixes (at most eight passes) and it touches only primitive arrays, which is
- * what makes it several times faster than a comparison sort of objects. Stateless and thread-safe; uses two
- * scratch arrays of the input's size.
+ * what makes it several times faster than a comparison sort of objects. Stateless and thread-safe; uses the
+ * input array and two more of its size.
  */
 final class PrefixRadixSort {
     private PrefixRadixSort() {}
 
-    /** Prefixes in ascending unsigned order, and for each the position it had in the input. */
+    /**
+     * The first {@code n} entries of {@code prefixes} in ascending unsigned order (the array may be longer), and
+     * for each the position it had in the input.
+     */
     record Sorted(long[] prefixes, int[] index) {}
 
     /** The first eight bytes of {@code bytes[from, to)} as a big-endian number, padded with zero bytes. */
@@ -28,9 +31,11 @@ final class PrefixRadixSort {
         return p;
     }
 
-    /** Sorts the first {@code n} prefixes; the input array is not modified. */
-    static Sorted sort(long[] input, int n) {
-        long[] keys = Arrays.copyOf(input, n);
+    /**
+     * Sorts the first {@code n} prefixes. The input array serves as one of the two buffers the passes alternate
+     * between, so its contents are undefined afterwards; the sorted prefixes are in the result.
+     */
+    static Sorted sort(long[] keys, int n) {
         int[] idx = new int[n];
         for (int i = 0; i < n; i++) {
             idx[i] = i;
