@@ -19,15 +19,19 @@ import java.util.UUID;
  * type is read into by a {@link dev.onefold.spi.RecordAccess}, and the form merge state, chunks and digests
  * are defined on.
  *
- * <p>Immutable and thread-safe. Equality is by schema and values. Building costs one pass over the values.
+ * <p>Immutable and thread-safe. Equality is by schema and values. Building costs one pass over the values,
+ * plus one over its variable-size values (strings, bytes, map keys) for {@link #estimatedHeapBytes()}.
  */
 public final class Row {
     private final RowSchema schema;
     private final Object[] values;
+    /** Fits in the object's alignment padding, so it costs no memory. */
+    private final int heapBytes;
 
     private Row(RowSchema schema, Object[] values) {
         this.schema = schema;
         this.values = values;
+        this.heapBytes = (int) Math.min(Integer.MAX_VALUE, RowSizes.estimate(schema, values));
     }
 
     public static Builder builder(RowSchema schema) {
@@ -53,6 +57,14 @@ public final class Row {
     }
 
     public RowSchema schema() { return schema; }
+
+    /**
+     * An estimate of the heap this row holds (headers, references, boxed values, string bytes), within about a
+     * factor of two; computed when the row was built, so reading it is free. Memory budgets count it.
+     */
+    public long estimatedHeapBytes() {
+        return heapBytes;
+    }
 
     public Object get(int position) {
         return values[position];

@@ -13,6 +13,7 @@ import java.util.Arrays;
 import java.util.List;
 import java.util.concurrent.ForkJoinPool;
 import java.util.concurrent.ForkJoinTask;
+import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.function.Consumer;
 import java.util.stream.IntStream;
 
@@ -20,7 +21,9 @@ import java.util.stream.IntStream;
  * Stage one of a batch that fits in memory: the fast counterpart of {@link Consolidator}. Records are buffered
  * in blocks of {@value #BLOCK}; as each block fills, a worker reads every record's order and key bytes into the
  * block's byte slab, hashes the key and reads the version (last-writer) or lifts the merge state (other
- * policies), while the caller goes on buffering the next block. Then records are grouped by key in
+ * policies), while the caller goes on buffering the next block; once input ends, the caller extracts the
+ * blocks no worker has started, from the newest back. The caller itself only stores references and adds up
+ * the sizes rows carry ({@link Row#estimatedHeapBytes()}), so it stays ahead. Then records are grouped by key in
  * open-addressing hash tables, one per shard of the key hashes, in parallel; each key with several records is
  * folded in the same canonical order as {@link Consolidator} (ascending state bytes, exact duplicates skipped),
  * so the folded states and the counts are identical to the sorting path (two records the policy knows to
@@ -63,6 +66,8 @@ public final class HashConsolidator {
     private Block filling;
     private int n;
     private long bytes;
+    /** Slab bytes per record of the last block extracted, to size the next slab; 0 before the first. */
+    private volatile int slabBytesPerRecord;
     private final MergeCounts counts = new MergeCounts();
     private long accepted;
     private long rejected;
@@ -87,7 +92,7 @@ public final class HashConsolidator {
      * @return false, without buffering, when the row would exceed the memory budget
      */
     public boolean add(Row row, long position, Object original) {
-        long size = RowSizes.estimate(row) + COLUMN_BYTES;
+        long size = row.estimatedHeapBytes() + COLUMN_BYTES;
         if (bytes + size > budget && n > 0) {
             return false;
         }
@@ -122,20 +127,30 @@ public final class HashConsolidator {
     /** Starts the extraction of a full block on another core, or runs it here when work must stay serial. */
     private void seal(Block b) {
         if (parallel) {
-            b.extraction = ForkJoinPool.commonPool().submit((Runnable) b::extract);
-        } else {
+            b.extraction = ForkJoinPool.commonPool().submit(() -> {
+                if (b.claim()) {
+                    b.extract();
+                }
+            });
+        } else if (b.claim()) {
             b.extract();
         }
     }
 
-    /** Waits for every block's extraction; the last block, never sealed, is extracted here. */
+    /**
+     * Extracts every block no worker has started, newest first, while the workers go on from the oldest, so
+     * the caller's thread shares the backlog once input ends; then waits for the blocks the workers took.
+     */
     private Block[] extracted() {
         Block[] all = blocks.toArray(new Block[0]);
+        for (int b = all.length - 1; b >= 0; b--) {
+            if (all[b].claim()) {
+                all[b].extract();
+            }
+        }
         for (Block b : all) {
             if (b.extraction != null) {
                 b.extraction.join();
-            } else if (!b.extracted) {
-                b.extract();
             }
         }
         return all;
@@ -144,8 +159,8 @@ public final class HashConsolidator {
     /** Moves everything buffered into a spilling consolidator, in input order, when the budget is exceeded. */
     public void transferTo(Consolidator target, Consumer<Rejection> rejects) {
         for (Block b : blocks) {
-            if (b.extraction != null) {
-                // the worker still reads this block's rows; its columns are not needed, but its failures are
+            if (!b.claim() && b.extraction != null) {
+                // a worker took this block; its columns are not needed, but its failures are
                 b.extraction.join();
             }
             for (int j = 0; j < b.size; j++) {
@@ -224,7 +239,8 @@ public final class HashConsolidator {
      * block's arrays grow with it, so a small batch costs little.
      */
     private final class Block {
-        private final ByteWriter slab;
+        /** Written by extraction only, in one array sized from the blocks before it so it seldom grows. */
+        private ByteWriter slab;
         /** The block's first record's position; the others follow one by one. */
         final long firstPosition;
         Row[] rows;
@@ -241,12 +257,12 @@ public final class HashConsolidator {
         Object[] states;
         byte[] slabBytes;
         int size;
-        boolean extracted;
+        /** Set by whichever thread extracts the block: a worker or, once input ends, the caller. */
+        private final AtomicBoolean claimed = new AtomicBoolean();
         ForkJoinTask<?> extraction;
 
         Block(long firstPosition, int capacity) {
             this.firstPosition = firstPosition;
-            slab = new ByteWriter(capacity * 16);
             rows = new Row[capacity];
             originals = new Object[capacity];
         }
@@ -283,8 +299,15 @@ public final class HashConsolidator {
             reasons[j] = reason;
         }
 
+        boolean claim() {
+            return claimed.compareAndSet(false, true);
+        }
+
         /** Reads every record's columns; a record whose key, version or state is unusable gets its reason. */
         void extract() {
+            // a racy read of the hint is harmless: any value is a valid starting capacity
+            int perRecord = slabBytesPerRecord;
+            slab = new ByteWriter(size * (perRecord > 0 ? perRecord + perRecord / 8 + 1 : 16));
             orderStart = new int[size];
             keyStart = new int[size];
             end = new int[size];
@@ -302,7 +325,9 @@ public final class HashConsolidator {
                 }
             }
             slabBytes = slab.array();
-            extracted = true;
+            if (size > 0) {
+                slabBytesPerRecord = (slab.length() + size - 1) / size;
+            }
         }
 
         private void extract(int j) {
@@ -418,11 +443,10 @@ public final class HashConsolidator {
         Shard run() {
             int cap = Integer.highestOneBit(Math.max(16, (n >> shardBits) * 2 - 1)) << 1;
             int mask = cap - 1;
-            // a slot holds the upper half of the key's hash and its first record's index + 1, so most probes are
-            // settled without touching the records, and a fresh table is empty without filling; tails hold
-            // the last record of the slot's chain, index + 1
-            long[] table = new long[cap];
-            int[] tail = new int[cap];
+            // a slot is two longs: the upper half of the key's hash with its first record's index + 1, so most
+            // probes are settled without touching the records and a fresh table is empty without filling; then
+            // the last record of the key's chain, index + 1, in the same cache line
+            long[] table = new long[2 * cap];
             int[] firsts = new int[Math.max(16, (n >> shardBits) + (n >> (shardBits + 3)))];
             int keys = 0;
             Block[] all = buffered.all;
@@ -437,10 +461,10 @@ public final class HashConsolidator {
                     long upper = hash & 0xFFFFFFFF00000000L;
                     int slot = (int) hash & mask;
                     while (true) {
-                        long entry = table[slot];
+                        long entry = table[2 * slot];
                         if (entry == 0) {
-                            table[slot] = upper | (i + 1);
-                            tail[slot] = i + 1;
+                            table[2 * slot] = upper | (i + 1);
+                            table[2 * slot + 1] = i + 1;
                             if (keys == firsts.length) {
                                 firsts = Arrays.copyOf(firsts, keys + (keys >> 1));
                             }
@@ -448,8 +472,8 @@ public final class HashConsolidator {
                             break;
                         }
                         if ((entry & 0xFFFFFFFF00000000L) == upper && sameKey((int) entry - 1, i)) {
-                            next[tail[slot] - 1] = i + 1;
-                            tail[slot] = i + 1;
+                            next[(int) table[2 * slot + 1] - 1] = i + 1;
+                            table[2 * slot + 1] = i + 1;
                             break;
                         }
                         slot = (slot + 1) & mask;

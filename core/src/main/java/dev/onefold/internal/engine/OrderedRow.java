@@ -49,6 +49,6 @@ public final class OrderedRow {
     }
 
     long estimatedBytes() {
-        return 200L + order.length * 2L + RowSizes.estimate(row);
+        return 200L + order.length * 2L + row.estimatedHeapBytes();
     }
 }

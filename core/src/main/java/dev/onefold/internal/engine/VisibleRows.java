@@ -36,6 +36,8 @@ final class VisibleRows {
     private int[] refs;
     private long[] prefixes;
     private int size;
+    /** The rows in sorted order, once {@link #sort} ran. */
+    private Row[] inOrder;
     private Row[] merged = new Row[0];
     private byte[][] mergedSlabs = new byte[0][];
     private int[] mergedStarts = new int[0];
@@ -120,10 +122,18 @@ final class VisibleRows {
         }
         refs = sortedRefs;
         prefixes = keys;
+        // fetching the rows here, one worker per part, takes their scattered reads off the serial merge
+        inOrder = new Row[size];
+        for (int i = 0; i < size; i++) {
+            inOrder[i] = row(sortedRefs[i]);
+        }
     }
 
     /** Interleaves parts, each already {@link #sort sorted}, into one sequence of rows in the same order. */
     static Row[] merge(VisibleRows[] parts) {
+        if (parts.length == 1) {
+            return parts[0].inOrder;
+        }
         int total = 0;
         for (VisibleRows p : parts) {
             total += p.size;
@@ -137,8 +147,7 @@ final class VisibleRows {
                     best = p;
                 }
             }
-            VisibleRows part = parts[best];
-            out[o] = part.row(part.refs[at[best]++]);
+            out[o] = parts[best].inOrder[at[best]++];
         }
         return out;
     }

@@ -1,22 +1,19 @@
-package dev.onefold.internal.engine;
+package dev.onefold.record;
 
-import dev.onefold.record.FieldType;
-import dev.onefold.record.Row;
-import dev.onefold.record.RowSchema;
 import java.nio.ByteBuffer;
 import java.util.List;
 import java.util.Map;
 
 /**
- * A cheap estimate of the heap a row occupies (object headers, references, boxed values, string bytes), used to
- * keep batches within their memory budget. Within a factor of about two of the truth; never reads more than
- * the row itself.
+ * A cheap estimate of the heap a row occupies (object headers, references, boxed values, string bytes), which
+ * {@link Row} computes once when it is built, while its values are still in the cache; memory budgets count
+ * it. Within a factor of about two of the truth; never reads more than the row itself, and a nested row's
+ * estimate is its own, already computed.
  *
  * <p>The walk follows the schema's types rather than testing each value's class: a fixed-width value (number,
  * boolean, timestamp, date, uuid) costs a constant and is never dereferenced, and a collection of fixed-width
  * values is sized from its length, so the walk touches only what has a variable size (strings, bytes,
- * decimals, nested records, map keys). Every row of a batch passes here once, on the caller's thread, before
- * anything runs in parallel, so this is on the critical path. Stateless and thread-safe.
+ * decimals, nested records, map keys). Stateless and thread-safe.
  */
 final class RowSizes {
     /** A boxed fixed-width value: header plus payload, rounded as the JVM lays it out (common practice). */
@@ -25,12 +22,12 @@ final class RowSizes {
 
     private RowSizes() {}
 
-    static long estimate(Row row) {
-        RowSchema schema = row.schema();
+    /** The estimate for a row of {@code schema} holding {@code values}, already normalised. */
+    static long estimate(RowSchema schema, Object[] values) {
         List<RowSchema.Field> fields = schema.fields();
         long size = 32;
         for (int i = 0; i < fields.size(); i++) {
-            size += REFERENCE + value(fields.get(i).type(), row.get(i));
+            size += REFERENCE + value(fields.get(i).type(), values[i]);
         }
         return size;
     }
@@ -43,7 +40,7 @@ final class RowSizes {
             case STRING -> 48 + ((String) v).length();
             case BYTES -> 64 + ((ByteBuffer) v).remaining();
             case DECIMAL -> 64 + ((java.math.BigDecimal) v).unscaledValue().bitLength() / 8;
-            case RECORD -> estimate((Row) v);
+            case RECORD -> ((Row) v).estimatedHeapBytes();
             case LIST -> list(type.element(), (List<?>) v);
             case MAP -> map(type.element(), (Map<?, ?>) v);
             default -> BOXED;
