@@ -7,6 +7,7 @@ import dev.onefold.internal.engine.HashConsolidator;
 import dev.onefold.internal.engine.KeyedState;
 import dev.onefold.internal.merge.MergeCounts;
 import dev.onefold.internal.engine.Publisher;
+import dev.onefold.internal.engine.Workspace;
 import dev.onefold.record.Row;
 import dev.onefold.spi.RecordAccess;
 import java.nio.file.Path;
@@ -31,7 +32,9 @@ import java.util.function.Consumer;
  * call returns or fails.
  *
  * <p>Cost: O(n log n) in the batch size; the sort uses all cores given by {@link Builder#parallel}; output is
- * byte-identical to a single-threaded run. An engine is immutable and thread-safe; each call is independent.
+ * byte-identical to a single-threaded run. An engine is thread-safe and its calls are independent; between calls it
+ * keeps the scratch arrays of its last in-memory batch, softly and at most half its memory budget, so a stream of
+ * batches through one engine allocates little beyond its output.
  */
 public final class BatchEngine<R> {
     private final BoundDataset dataset;
@@ -39,6 +42,8 @@ public final class BatchEngine<R> {
     private final long budget;
     private final Path spillDir;
     private final boolean parallel;
+    /** Scratch arrays of the in-memory path, passed from batch to batch (at most the in-memory half of the budget). */
+    private final Workspace.Keeper workspaces;
 
     private BatchEngine(Builder<R> b) {
         this.access = b.access;
@@ -46,6 +51,7 @@ public final class BatchEngine<R> {
         this.budget = b.budget;
         this.spillDir = b.spillDir;
         this.parallel = b.parallel;
+        this.workspaces = new Workspace.Keeper(budget / 2);
     }
 
     /**
@@ -82,7 +88,8 @@ public final class BatchEngine<R> {
             Consumer<Rejection> rejects) {
         Objects.requireNonNull(records, "records");
         long in = 0;
-        HashConsolidator fast = new HashConsolidator(dataset, source, budget / 2, parallel);
+        Workspace workspace = workspaces.take();
+        HashConsolidator fast = new HashConsolidator(dataset, source, budget / 2, parallel, workspace);
         Consolidator spilling = null;
         try (Publisher publisher = new Publisher(dataset, budget / 2, spillDir, parallel)) {
             while (records.hasNext()) {
@@ -106,6 +113,7 @@ public final class BatchEngine<R> {
                     // the batch outgrew memory: continue on the sorting, spilling path
                     spilling = new Consolidator(dataset, budget / 2, spillDir, parallel);
                     fast.transferTo(spilling, rejects);
+                    workspaces.give(workspace);
                 }
                 if (spilling != null) {
                     spilling.add(row, source, position, record, rejects);
@@ -113,11 +121,11 @@ public final class BatchEngine<R> {
             }
             if (spilling == null) {
                 HashConsolidator.Ordered ordered = fast.foldAndOrder(rejects);
-                for (Row r : ordered.rows()) {
-                    survivors.accept(access.fromRow(r));
-                }
+                ordered.forEachInOrder(r -> survivors.accept(access.fromRow(r)));
+                fast.release();
+                workspaces.give(workspace);
                 return report(in, fast.accepted(), fast.rejected(), fast.counts(), ordered.keys(),
-                        ordered.keysWithSiblings(), ordered.deletedKeys(), ordered.rows().length, 0);
+                        ordered.keysWithSiblings(), ordered.deletedKeys(), ordered.rows(), 0);
             }
             try (Consolidator c = spilling; CloseableIterator<KeyedState> folded = c.folded()) {
                 publisher.addAll(folded);

@@ -55,6 +55,11 @@ public final class ByteWriter {
         return len;
     }
 
+    /** How many bytes fit before the buffer must grow. */
+    public int capacity() {
+        return buf.length;
+    }
+
     public ByteWriter write(int b) {
         ensure(1);
         buf[len++] = (byte) b;

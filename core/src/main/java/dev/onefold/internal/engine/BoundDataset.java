@@ -244,7 +244,7 @@ public final class BoundDataset {
             if (v == null && !spec.allowNullKey()) {
                 throw OnefoldException.record("key field '" + p.path() + "' is null");
             }
-            OrderedBytes.write(w, p.type().nullable(), v, false);
+            OrderedBytes.write(w, p.type(), v, false);
         }
     }
 
@@ -264,7 +264,7 @@ public final class BoundDataset {
     /** Appends the order fields of a row (flipped when descending) to {@code w}; the key bytes follow them. */
     public void writeOrderFields(ByteWriter w, Row row) {
         for (int i = 0; i < order.length; i++) {
-            OrderedBytes.write(w, order[i].type().nullable(), order[i].read(row), descending[i]);
+            OrderedBytes.write(w, order[i].type(), order[i].read(row), descending[i]);
         }
     }
 

@@ -48,7 +48,7 @@ import java.util.stream.IntStream;
 public final class HashConsolidator {
     private static final int BLOCK_BITS = 13;
     /** Records per block; a block is the unit of background extraction. */
-    private static final int BLOCK = 1 << BLOCK_BITS;
+    static final int BLOCK = 1 << BLOCK_BITS;
     /** Below this many records the work stays on the caller's thread: forking would cost more than it saves. */
     private static final int PARALLEL_THRESHOLD = 4096;
     /** What {@link #add} counts per record beyond the row itself: its columns and slab bytes. */
@@ -69,6 +69,14 @@ public final class HashConsolidator {
     /** Slab bytes per record of the last block extracted, to size the next slab; 0 before the first. */
     private volatile int slabBytesPerRecord;
     private final MergeCounts counts = new MergeCounts();
+    private final Workspace workspace;
+    /** What the fold used, kept until {@link #release}: each shard's arrays and the chains. */
+    private Shard[] folded;
+    /**
+     * Chains the records of one key: {@code next[i]} is the next record's index + 1, 0 ends the chain. Shared
+     * by all shards; each writes only the entries of its own records.
+     */
+    private int[] next;
     private long accepted;
     private long rejected;
 
@@ -76,7 +84,9 @@ public final class HashConsolidator {
      * @param source names the batch in rejections; the record at position p is the p-th record {@link #add}ed
      *               or {@link #reject}ed, counting from 0
      */
-    public HashConsolidator(BoundDataset dataset, String source, long budgetBytes, boolean parallel) {
+    public HashConsolidator(BoundDataset dataset, String source, long budgetBytes, boolean parallel,
+            Workspace workspace) {
+        this.workspace = workspace;
         this.dataset = dataset;
         this.source = source;
         this.policy = dataset.policy();
@@ -171,10 +181,28 @@ public final class HashConsolidator {
                 }
             }
         }
-        blocks.clear();
-        filling = null;
+        release();
         n = 0;
         bytes = 0;
+    }
+
+    /**
+     * Gives every array back to the workspace, holding on to no record, once the rows were handed out; the
+     * consolidator is spent. Not called after a failure: a worker may still hold arrays then.
+     */
+    public void release() {
+        for (Block b : blocks) {
+            b.release();
+        }
+        blocks.clear();
+        filling = null;
+        if (folded != null) {
+            for (Shard s : folded) {
+                s.release();
+            }
+            workspace.ints.give(next);
+            folded = null;
+        }
     }
 
     public long accepted() {
@@ -189,8 +217,37 @@ public final class HashConsolidator {
         return counts;
     }
 
-    /** What the in-memory path produced: visible rows in order, and the key counts. */
-    public record Ordered(Row[] rows, long keys, long keysWithSiblings, long deletedKeys) {}
+    /** What the in-memory path produced: the visible rows, handed out in order on demand, and the key counts. */
+    public static final class Ordered {
+        private final VisibleRows[] parts;
+        private final KeyResolver totals;
+
+        private Ordered(VisibleRows[] parts, KeyResolver totals) {
+            this.parts = parts;
+            this.totals = totals;
+        }
+
+        /** Hands every visible row to {@code sink}, in order. Call once. */
+        public void forEachInOrder(Consumer<? super Row> sink) {
+            VisibleRows.merge(parts, sink);
+        }
+
+        public long rows() {
+            return VisibleRows.size(parts);
+        }
+
+        public long keys() {
+            return totals.keys;
+        }
+
+        public long keysWithSiblings() {
+            return totals.keysWithSiblings;
+        }
+
+        public long deletedKeys() {
+            return totals.deletedKeys;
+        }
+    }
 
     /**
      * Groups and folds what was buffered, then resolves each key to its visible rows and sorts them by the order;
@@ -202,10 +259,11 @@ public final class HashConsolidator {
         int shards = parallel && n >= PARALLEL_THRESHOLD
                 ? Integer.highestOneBit(Runtime.getRuntime().availableProcessors()) : 1;
         Shard[] done = new Shard[shards];
-        int[] next = new int[n];
+        next = workspace.zeroedInts(n);
+        folded = done;
         IntStream shardRange = IntStream.range(0, shards);
         Buffered buffered = new Buffered(all);
-        (shards > 1 ? shardRange.parallel() : shardRange).forEach(s -> done[s] = new Shard(buffered, next, s, shards).run());
+        (shards > 1 ? shardRange.parallel() : shardRange).forEach(s -> done[s] = new Shard(buffered, s, shards).run());
         KeyResolver totals = new KeyResolver(dataset);
         VisibleRows[] visible = new VisibleRows[shards];
         for (int s = 0; s < shards; s++) {
@@ -213,7 +271,7 @@ public final class HashConsolidator {
             totals.add(done[s].resolver);
             visible[s] = done[s].visible;
         }
-        return new Ordered(VisibleRows.merge(visible), totals.keys, totals.keysWithSiblings, totals.deletedKeys);
+        return new Ordered(visible, totals);
     }
 
     private void reportRejections(Block[] all, Consumer<Rejection> rejects) {
@@ -299,6 +357,23 @@ public final class HashConsolidator {
             reasons[j] = reason;
         }
 
+        /** Gives the block's arrays back to the workspace, cleared of records and states. */
+        void release() {
+            if (slab == null) {
+                return; // never extracted: the batch moved to the spilling path first
+            }
+            workspace.giveSlab(slab);
+            workspace.ints.give(orderStart);
+            workspace.ints.give(keyStart);
+            workspace.ints.give(end);
+            workspace.longs.give(hashes);
+            workspace.longs.give(prefixes);
+            if (states == null) {
+                workspace.longs.give(versions);
+                workspace.booleans.give(deletes);
+            }
+        }
+
         boolean claim() {
             return claimed.compareAndSet(false, true);
         }
@@ -307,15 +382,15 @@ public final class HashConsolidator {
         void extract() {
             // a racy read of the hint is harmless: any value is a valid starting capacity
             int perRecord = slabBytesPerRecord;
-            slab = new ByteWriter(size * (perRecord > 0 ? perRecord + perRecord / 8 + 1 : 16));
-            orderStart = new int[size];
-            keyStart = new int[size];
-            end = new int[size];
-            hashes = new long[size];
-            prefixes = new long[size];
+            slab = workspace.slab(size * (perRecord > 0 ? perRecord + perRecord / 8 + 1 : 16));
+            orderStart = workspace.ints.take(size);
+            keyStart = workspace.ints.take(size);
+            end = workspace.ints.take(size);
+            hashes = workspace.longs.take(size);
+            prefixes = workspace.longs.take(size);
             if (lastWriter != null) {
-                versions = new long[size];
-                deletes = new boolean[size];
+                versions = workspace.longs.take(size);
+                deletes = workspace.booleans.take(size);
             } else {
                 states = new Object[size];
             }
@@ -408,19 +483,22 @@ public final class HashConsolidator {
         final MergeCounts counts = new MergeCounts();
         final KeyResolver resolver = new KeyResolver(dataset);
         final VisibleRows visible;
-        /**
-         * Chains the records of one key: {@code next[i]} is the next record's index + 1, 0 ends the chain. Shared
-         * by all shards; each writes only the entries of its own records.
-         */
-        private final int[] next;
+        /** The shard's hash table and its keys' first records, kept for {@link #release}. */
+        private long[] table;
+        private int[] firsts;
         private long[] versionScratch = new long[8];
 
-        Shard(Buffered buffered, int[] next, int shard, int shards) {
+        Shard(Buffered buffered, int shard, int shards) {
             this.buffered = buffered;
-            this.next = next;
             this.shard = shard;
             this.shardBits = Integer.numberOfTrailingZeros(shards);
-            this.visible = new VisibleRows(buffered, n / shards + 16);
+            this.visible = new VisibleRows(buffered, n / shards + 16, workspace);
+        }
+
+        void release() {
+            workspace.longs.give(table);
+            workspace.ints.give(firsts);
+            visible.release();
         }
 
         private boolean mine(long hash) {
@@ -446,8 +524,8 @@ public final class HashConsolidator {
             // a slot is two longs: the upper half of the key's hash with its first record's index + 1, so most
             // probes are settled without touching the records and a fresh table is empty without filling; then
             // the last record of the key's chain, index + 1, in the same cache line
-            long[] table = new long[2 * cap];
-            int[] firsts = new int[Math.max(16, (n >> shardBits) + (n >> (shardBits + 3)))];
+            table = workspace.zeroedLongs(2 * cap);
+            firsts = workspace.ints.take(Math.max(16, (n >> shardBits) + (n >> (shardBits + 3))));
             int keys = 0;
             Block[] all = buffered.all;
             for (int bi = 0; bi < all.length; bi++) {

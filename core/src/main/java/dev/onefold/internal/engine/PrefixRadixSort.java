@@ -36,15 +36,20 @@ final class PrefixRadixSort {
      * between, so its contents are undefined afterwards; the sorted prefixes are in the result.
      */
     static Sorted sort(long[] keys, int n) {
-        int[] idx = new int[n];
+        return sort(keys, n, new int[n], new long[n], new int[n]);
+    }
+
+    /**
+     * Sorts the first {@code n} prefixes using the given buffers, each of at least {@code n} entries, whose
+     * contents do not matter; the result is held in two of the five arrays.
+     */
+    static Sorted sort(long[] keys, int n, int[] idx, long[] keys2, int[] idx2) {
         for (int i = 0; i < n; i++) {
             idx[i] = i;
         }
         if (n < 2) {
             return new Sorted(keys, idx);
         }
-        long[] keys2 = new long[n];
-        int[] idx2 = new int[n];
         int[] count = new int[257];
         for (int shift = 0; shift < 64; shift += 8) {
             Arrays.fill(count, 0);

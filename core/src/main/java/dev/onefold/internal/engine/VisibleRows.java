@@ -5,6 +5,7 @@ import dev.onefold.internal.encoding.RowCodec;
 import dev.onefold.record.Row;
 import java.util.Arrays;
 import java.util.Comparator;
+import java.util.function.Consumer;
 
 /**
  * Visible rows collected by one worker of the in-memory path, ordered the way {@link OrderedRow#ORDER} orders
@@ -47,11 +48,14 @@ final class VisibleRows {
     private byte[] slab = new byte[0];
     private int slabUsed;
 
-    VisibleRows(Records records, int expected) {
+    private final Workspace workspace;
+
+    VisibleRows(Records records, int expected, Workspace workspace) {
         this.records = records;
+        this.workspace = workspace;
         int cap = Math.max(16, expected);
-        refs = new int[cap];
-        prefixes = new long[cap];
+        refs = workspace.ints.take(cap);
+        prefixes = workspace.longs.take(cap);
     }
 
     private void add(int ref, long prefix) {
@@ -103,13 +107,20 @@ final class VisibleRows {
 
     /** Sorts this part by order bytes, then canonical row bytes. */
     void sort() {
-        PrefixRadixSort.Sorted byPrefix = PrefixRadixSort.sort(prefixes, size);
+        int[] idxBuffer = workspace.ints.take(size);
+        int[] idxBuffer2 = workspace.ints.take(size);
+        long[] prefixBuffer = workspace.longs.take(size);
+        PrefixRadixSort.Sorted byPrefix = PrefixRadixSort.sort(prefixes, size, idxBuffer, prefixBuffer, idxBuffer2);
         long[] keys = byPrefix.prefixes();
         int[] idx = byPrefix.index();
-        int[] sortedRefs = new int[size];
+        int[] sortedRefs = workspace.ints.take(size);
         for (int i = 0; i < size; i++) {
             sortedRefs[i] = refs[idx[i]];
         }
+        workspace.ints.give(idxBuffer);
+        workspace.ints.give(idxBuffer2);
+        workspace.longs.give(keys == prefixes ? prefixBuffer : prefixes);
+        workspace.ints.give(refs);
         Comparator<Integer> fullOrder = (x, y) -> compare(this, x, this, y);
         int runStart = 0;
         for (int i = 1; i <= size; i++) {
@@ -129,27 +140,39 @@ final class VisibleRows {
         }
     }
 
-    /** Interleaves parts, each already {@link #sort sorted}, into one sequence of rows in the same order. */
-    static Row[] merge(VisibleRows[] parts) {
-        if (parts.length == 1) {
-            return parts[0].inOrder;
-        }
-        int total = 0;
+    /** Gives this part's arrays back to the workspace, holding on to no row. Call once, after {@link #merge}. */
+    void release() {
+        workspace.ints.give(refs);
+        workspace.longs.give(prefixes);
+    }
+
+    /** How many rows the parts hold together. */
+    static long size(VisibleRows[] parts) {
+        long total = 0;
         for (VisibleRows p : parts) {
             total += p.size;
         }
-        Row[] out = new Row[total];
+        return total;
+    }
+
+    /**
+     * Interleaves parts, each already {@link #sort sorted}, handing their rows to {@code sink} in the same order
+     * one part would have; straight to the sink, because the caller consumes them once, in order.
+     */
+    static void merge(VisibleRows[] parts, Consumer<? super Row> sink) {
         int[] at = new int[parts.length];
-        for (int o = 0; o < total; o++) {
+        while (true) {
             int best = -1;
             for (int p = 0; p < parts.length; p++) {
                 if (at[p] < parts[p].size && (best < 0 || before(parts[p], at[p], parts[best], at[best]))) {
                     best = p;
                 }
             }
-            out[o] = parts[best].inOrder[at[best]++];
+            if (best < 0) {
+                return;
+            }
+            sink.accept(parts[best].inOrder[at[best]++]);
         }
-        return out;
     }
 
     private static boolean before(VisibleRows a, int i, VisibleRows b, int j) {
