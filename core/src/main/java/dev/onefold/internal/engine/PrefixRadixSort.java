@@ -4,13 +4,14 @@ import java.util.Arrays;
 
 /**
  * Sorts unsigned 64-bit order prefixes with an index riding along: a least-significant-digit radix sort, one
- * pass per byte, skipping passes whose byte is the same for every prefix. The in-memory path sorts its visible
- * rows by prefix here and compares the full order bytes only inside runs of equal prefixes; {@link #prefix}
- * also gives the spilling path's {@link OrderedRow} its prefix, so both read the same eight bytes.
+ * pass per byte, skipping passes whose byte is the same for every prefix; a single counting pass serves all
+ * bytes. The in-memory path sorts its visible rows by prefix here and compares the full order bytes only inside
+ * runs of equal prefixes; {@link #prefix} also gives the spilling path's {@link OrderedRow} its prefix, so both
+ * read the same eight bytes.
  *
- * <p>Linear in the number of prefixes (at most eight passes) and it touches only primitive arrays, which is
- * what makes it several times faster than a comparison sort of objects. Stateless and thread-safe; uses the
- * input array and two more of its size.
+ * <p>Linear in the number of prefixes (at most nine passes) and it touches only primitive arrays, which is
+ * what makes it several times faster than a comparison sort of objects. Stable. Stateless and thread-safe;
+ * uses the input array and three more of its size.
  */
 final class PrefixRadixSort {
     private PrefixRadixSort() {}
@@ -50,12 +51,17 @@ final class PrefixRadixSort {
         if (n < 2) {
             return new Sorted(keys, idx);
         }
-        int[] count = new int[257];
-        for (int shift = 0; shift < 64; shift += 8) {
-            Arrays.fill(count, 0);
-            for (int i = 0; i < n; i++) {
-                count[(int) ((keys[i] >>> shift) & 0xFF) + 1]++;
+        // one pass counts all eight digits; a digit every prefix shares needs no pass of its own
+        int[][] counts = new int[8][257];
+        for (int i = 0; i < n; i++) {
+            long k = keys[i];
+            for (int d = 0; d < 8; d++) {
+                counts[d][(int) ((k >>> (d << 3)) & 0xFF) + 1]++;
             }
+        }
+        for (int d = 0; d < 8; d++) {
+            int shift = d << 3;
+            int[] count = counts[d];
             if (count[(int) ((keys[0] >>> shift) & 0xFF) + 1] == n) {
                 continue;
             }
