@@ -38,6 +38,7 @@ public final class BoundDataset {
     private final RowSchema schema;
     private final FieldPath[] key;
     private final FieldPath[] order;
+    private final int constantOrderBytes;
     private final boolean[] descending;
     private final FieldPath[] partitionFields;
     private final DatasetSpec.TimeUnit partitionUnit;
@@ -69,6 +70,9 @@ public final class BoundDataset {
                 problems.add("order field '" + of.path() + "' is " + order[i].type() + ", which cannot be ordered");
             }
         }
+        // a top-level field that is not nullable is never null in a row, so its presence byte never varies
+        constantOrderBytes = order.length > 0 && order[0] != null && order[0].isTopLevel()
+                && !order[0].type().isNullable() ? 1 : 0;
         FieldPath tombstone = null;
         if (spec.tombstone() != null) {
             tombstone = resolve(spec.tombstone(), "tombstone", problems);
@@ -266,6 +270,14 @@ public final class BoundDataset {
         for (int i = 0; i < order.length; i++) {
             OrderedBytes.write(w, order[i].type(), order[i].read(row), descending[i]);
         }
+    }
+
+    /**
+     * How many leading order bytes are the same for every row: the presence byte of a first order field that
+     * can never be null, else none. Sort prefixes start after them, so their eight bytes are all content.
+     */
+    public int constantOrderBytes() {
+        return constantOrderBytes;
     }
 
     /** Whether the dataset is partitioned. */

@@ -289,8 +289,8 @@ public final class HashConsolidator {
 
     /**
      * Up to {@value #BLOCK} buffered records in input order and what extraction reads from each: its order
-     * bytes (order fields, then key bytes) in the block's slab, where its key bytes start, the first eight order
-     * bytes as a number, the key's hash, the reason when it is rejected, and either its version and delete flag
+     * bytes (order fields, then key bytes) in the block's slab, where its key bytes start, its sort prefix
+     * (eight order bytes as a number), the key's hash, the reason when it is rejected, and either its version and delete flag
      * (last-writer) or its lifted state (other policies). A visible row that is one of the key's input records,
      * as it is for most keys of every policy, reuses these order bytes; only rows built by merging get order
      * bytes of their own. A record that could not be read has no row and arrives with its reason. The first
@@ -433,7 +433,7 @@ public final class HashConsolidator {
             keyStart[j] = key;
             end[j] = stop;
             hashes[j] = XxHash64.hash(array, key, stop - key, 0);
-            prefixes[j] = PrefixRadixSort.prefix(array, start, stop);
+            prefixes[j] = PrefixRadixSort.prefix(array, start + dataset.constantOrderBytes(), stop);
         }
     }
 
@@ -612,6 +612,17 @@ public final class HashConsolidator {
          * then only the states' content bytes can tell duplicates from conflicts.
          */
         private int lastWriterByVersion(int first) {
+            int second = next[first] - 1;
+            if (next[second] == 0) {
+                // two records, the common case of a key delivered twice: no scratch, no sort
+                long a = version(first);
+                long b = version(second);
+                if (a == b) {
+                    return -1;
+                }
+                counts.superseded++;
+                return a > b ? first : second;
+            }
             int m = 0;
             int winner = first;
             for (int i = first; i >= 0; i = next[i] - 1) {

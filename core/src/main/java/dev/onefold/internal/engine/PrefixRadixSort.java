@@ -6,8 +6,7 @@ import java.util.Arrays;
  * Sorts unsigned 64-bit order prefixes with an index riding along: a least-significant-digit radix sort, one
  * pass per byte, skipping passes whose byte is the same for every prefix; a single counting pass serves all
  * bytes. The in-memory path sorts its visible rows by prefix here and compares the full order bytes only inside
- * runs of equal prefixes; {@link #prefix} also gives the spilling path's {@link OrderedRow} its prefix, so both
- * read the same eight bytes.
+ * runs of equal prefixes; {@link #prefix} also gives the spilling path's {@link OrderedRow} its prefix.
  *
  * <p>Linear in the number of prefixes (at most nine passes) and it touches only primitive arrays, which is
  * what makes it several times faster than a comparison sort of objects. Stable. Stateless and thread-safe;

@@ -11,7 +11,8 @@ import java.util.function.Consumer;
  * Visible rows collected by one worker of the in-memory path, ordered the way {@link OrderedRow#ORDER} orders
  * them on the spilling path: order bytes (order fields, then the key), then canonical row bytes (which only
  * siblings of one key need). Most visible rows are input records, whose order bytes were read with them; such
- * an entry is just the record's index in {@link Records} and the first eight order bytes as a number, 12 bytes.
+ * an entry is just the record's index in {@link Records} and eight order bytes as a number (the first eight after
+ * those every row shares, {@link BoundDataset#constantOrderBytes}), 12 bytes.
  * Rows built by merging get their order bytes written here, into slabs of {@value #SLAB} bytes.
  *
  * <p>Each worker {@link #sort}s its own part (a radix sort of the prefixes, comparing bytes only inside runs of
@@ -96,7 +97,7 @@ final class VisibleRows {
         mergedSlabs[mergedCount] = slab;
         mergedStarts[mergedCount] = slabUsed;
         mergedEnds[mergedCount] = slabUsed + length;
-        add(-1 - mergedCount, PrefixRadixSort.prefix(slab, slabUsed, slabUsed + length));
+        add(-1 - mergedCount, PrefixRadixSort.prefix(slab, slabUsed + dataset.constantOrderBytes(), slabUsed + length));
         mergedCount++;
         slabUsed += length;
     }
@@ -182,6 +183,15 @@ final class VisibleRows {
 
     /** Sorts {@code refs[from, to)}, a run of equal prefixes, by the full order bytes, then row bytes. */
     private static void sortRun(int[] refs, int from, int to, Comparator<Integer> fullOrder) {
+        if (to - from == 2) {
+            // most runs are two rows whose prefixes happen to agree
+            if (fullOrder.compare(refs[from], refs[from + 1]) > 0) {
+                int t = refs[from];
+                refs[from] = refs[from + 1];
+                refs[from + 1] = t;
+            }
+            return;
+        }
         Integer[] run = new Integer[to - from];
         for (int i = from; i < to; i++) {
             run[i - from] = refs[i];
