@@ -70,13 +70,8 @@ public final class HashConsolidator {
     private volatile int slabBytesPerRecord;
     private final MergeCounts counts = new MergeCounts();
     private final Workspace workspace;
-    /** What the fold used, kept until {@link #release}: each shard's arrays and the chains. */
+    /** What the fold used, kept until {@link #release}: each shard's arrays. */
     private Shard[] folded;
-    /**
-     * Chains the records of one key: {@code next[i]} is the next record's index + 1, 0 ends the chain. Shared
-     * by all shards; each writes only the entries of its own records.
-     */
-    private int[] next;
     private long accepted;
     private long rejected;
 
@@ -175,9 +170,9 @@ public final class HashConsolidator {
             }
             for (int j = 0; j < b.size; j++) {
                 if (b.rows[j] == null) {
-                    target.reject(source, b.position(j), b.reason(j), b.originals[j], rejects);
+                    target.reject(source, b.position(j), b.reason(j), b.original(j), rejects);
                 } else {
-                    target.add(b.rows[j], source, b.position(j), b.originals[j], rejects);
+                    target.add(b.rows[j], source, b.position(j), b.original(j), rejects);
                 }
             }
         }
@@ -200,7 +195,6 @@ public final class HashConsolidator {
             for (Shard s : folded) {
                 s.release();
             }
-            workspace.ints.give(next);
             folded = null;
         }
     }
@@ -259,7 +253,6 @@ public final class HashConsolidator {
         int shards = parallel && n >= PARALLEL_THRESHOLD
                 ? Integer.highestOneBit(Runtime.getRuntime().availableProcessors()) : 1;
         Shard[] done = new Shard[shards];
-        next = workspace.zeroedInts(n);
         folded = done;
         IntStream shardRange = IntStream.range(0, shards);
         Buffered buffered = new Buffered(all);
@@ -279,7 +272,7 @@ public final class HashConsolidator {
             for (int j = 0; j < b.size; j++) {
                 if (b.reason(j) != null) {
                     rejected++;
-                    rejects.accept(new Rejection(source, b.position(j), b.reason(j), b.originals[j]));
+                    rejects.accept(new Rejection(source, b.position(j), b.reason(j), b.original(j)));
                 } else {
                     accepted++;
                 }
@@ -302,12 +295,19 @@ public final class HashConsolidator {
         /** The block's first record's position; the others follow one by one. */
         final long firstPosition;
         Row[] rows;
-        Object[] originals;
+        /**
+         * The records as given, where they are not their rows (another record type, or a record that could not
+         * be read); allocated with the first such record, so onefold's own rows cost no second array.
+         */
+        private Object[] originals;
         /** Why each record was rejected; allocated with the block's first rejection. */
         String[] reasons;
-        int[] orderStart;
-        int[] keyStart;
-        int[] end;
+        /**
+         * Record j's bytes in the slab: its order bytes start at {@code offsets[3j]}, its key bytes at
+         * {@code offsets[3j + 1]}, and both end at {@code offsets[3j + 2]}; side by side, so comparing a key
+         * against an earlier record's reads one cache line of them.
+         */
+        int[] offsets;
         long[] hashes;
         long[] prefixes;
         long[] versions;
@@ -322,24 +322,34 @@ public final class HashConsolidator {
         Block(long firstPosition, int capacity) {
             this.firstPosition = firstPosition;
             rows = new Row[capacity];
-            originals = new Object[capacity];
         }
 
         void put(Row row, Object original, String reason) {
             if (size == rows.length) {
                 int cap = Math.min(BLOCK, size * 4);
                 rows = Arrays.copyOf(rows, cap);
-                originals = Arrays.copyOf(originals, cap);
+                if (originals != null) {
+                    originals = Arrays.copyOf(originals, cap);
+                }
                 if (reasons != null) {
                     reasons = Arrays.copyOf(reasons, cap);
                 }
             }
             rows[size] = row;
-            originals[size] = original;
+            if (original != row) {
+                if (originals == null) {
+                    originals = new Object[rows.length];
+                }
+                originals[size] = original;
+            }
             if (reason != null) {
                 reject(size, reason);
             }
             size++;
+        }
+
+        Object original(int j) {
+            return originals == null || originals[j] == null ? rows[j] : originals[j];
         }
 
         long position(int j) {
@@ -363,9 +373,7 @@ public final class HashConsolidator {
                 return; // never extracted: the batch moved to the spilling path first
             }
             workspace.giveSlab(slab);
-            workspace.ints.give(orderStart);
-            workspace.ints.give(keyStart);
-            workspace.ints.give(end);
+            workspace.ints.give(offsets);
             workspace.longs.give(hashes);
             workspace.longs.give(prefixes);
             if (states == null) {
@@ -383,9 +391,7 @@ public final class HashConsolidator {
             // a racy read of the hint is harmless: any value is a valid starting capacity
             int perRecord = slabBytesPerRecord;
             slab = workspace.slab(size * (perRecord > 0 ? perRecord + perRecord / 8 + 1 : 16));
-            orderStart = workspace.ints.take(size);
-            keyStart = workspace.ints.take(size);
-            end = workspace.ints.take(size);
+            offsets = workspace.ints.take(3 * size);
             hashes = workspace.longs.take(size);
             prefixes = workspace.longs.take(size);
             if (lastWriter != null) {
@@ -429,9 +435,9 @@ public final class HashConsolidator {
             }
             byte[] array = slab.array();
             int stop = slab.length();
-            orderStart[j] = start;
-            keyStart[j] = key;
-            end[j] = stop;
+            offsets[3 * j] = start;
+            offsets[3 * j + 1] = key;
+            offsets[3 * j + 2] = stop;
             hashes[j] = XxHash64.hash(array, key, stop - key, 0);
             prefixes[j] = PrefixRadixSort.prefix(array, start + dataset.constantOrderBytes(), stop);
         }
@@ -461,12 +467,12 @@ public final class HashConsolidator {
 
         @Override
         public int orderStart(int i) {
-            return block(i).orderStart[i & (BLOCK - 1)];
+            return block(i).offsets[3 * (i & (BLOCK - 1))];
         }
 
         @Override
         public int orderEnd(int i) {
-            return block(i).end[i & (BLOCK - 1)];
+            return block(i).offsets[3 * (i & (BLOCK - 1)) + 2];
         }
     }
 
@@ -486,6 +492,13 @@ public final class HashConsolidator {
         /** The shard's hash table and its keys' first records, kept for {@link #release}. */
         private long[] table;
         private int[] firsts;
+        /**
+         * One entry per record of a key seen before: the key's first record's index in the upper half, the
+         * record's in the lower. Appended in input order, then sorted, so each key's later records follow one
+         * another in input order and the keys come in the order of their first records, as {@link #firsts} does.
+         */
+        private long[] later;
+        private int laterCount;
         private long[] versionScratch = new long[8];
 
         Shard(Buffered buffered, int shard, int shards) {
@@ -498,6 +511,7 @@ public final class HashConsolidator {
         void release() {
             workspace.longs.give(table);
             workspace.ints.give(firsts);
+            workspace.longs.give(later);
             visible.release();
         }
 
@@ -509,23 +523,29 @@ public final class HashConsolidator {
             return buffered.block(i);
         }
 
+        /**
+         * Whether records i and k, whose hashes share their upper half, have the same key bytes. Their full
+         * hashes are not compared first: the bytes decide anyway, and reading the earlier record's hash would
+         * cost one more cache miss on nearly every call.
+         */
         private boolean sameKey(int i, int k) {
             Block a = block(i);
             Block b = block(k);
-            int x = i & (BLOCK - 1);
-            int y = k & (BLOCK - 1);
-            return a.hashes[x] == b.hashes[y]
-                    && Arrays.equals(a.slabBytes, a.keyStart[x], a.end[x], b.slabBytes, b.keyStart[y], b.end[y]);
+            int x = 3 * (i & (BLOCK - 1));
+            int y = 3 * (k & (BLOCK - 1));
+            return Arrays.equals(a.slabBytes, a.offsets[x + 1], a.offsets[x + 2],
+                    b.slabBytes, b.offsets[y + 1], b.offsets[y + 2]);
         }
 
         Shard run() {
-            int cap = Integer.highestOneBit(Math.max(16, (n >> shardBits) * 2 - 1)) << 1;
+            int mine = n >> shardBits;
+            int cap = Integer.highestOneBit(Math.max(16, mine * 2 - 1)) << 1;
             int mask = cap - 1;
-            // a slot is two longs: the upper half of the key's hash with its first record's index + 1, so most
-            // probes are settled without touching the records and a fresh table is empty without filling; then
-            // the last record of the key's chain, index + 1, in the same cache line
-            table = workspace.zeroedLongs(2 * cap);
-            firsts = workspace.ints.take(Math.max(16, (n >> shardBits) + (n >> (shardBits + 3))));
+            // a slot holds the upper half of the key's hash and its first record's index + 1, so most probes are
+            // settled without touching the records, and a fresh table is empty without filling
+            table = workspace.zeroedLongs(cap);
+            firsts = workspace.ints.take(Math.max(16, mine + (mine >> 3)));
+            later = workspace.longs.take(Math.max(16, mine >> 2));
             int keys = 0;
             Block[] all = buffered.all;
             for (int bi = 0; bi < all.length; bi++) {
@@ -539,10 +559,9 @@ public final class HashConsolidator {
                     long upper = hash & 0xFFFFFFFF00000000L;
                     int slot = (int) hash & mask;
                     while (true) {
-                        long entry = table[2 * slot];
+                        long entry = table[slot];
                         if (entry == 0) {
-                            table[2 * slot] = upper | (i + 1);
-                            table[2 * slot + 1] = i + 1;
+                            table[slot] = upper | (i + 1);
                             if (keys == firsts.length) {
                                 firsts = Arrays.copyOf(firsts, keys + (keys >> 1));
                             }
@@ -550,24 +569,59 @@ public final class HashConsolidator {
                             break;
                         }
                         if ((entry & 0xFFFFFFFF00000000L) == upper && sameKey((int) entry - 1, i)) {
-                            next[(int) table[2 * slot + 1] - 1] = i + 1;
-                            table[2 * slot + 1] = i + 1;
+                            // appended, not linked to the key's previous record: no write to a cold line
+                            if (laterCount == later.length) {
+                                later = Arrays.copyOf(later, laterCount * 2);
+                            }
+                            later[laterCount++] = ((entry - 1) << 32) | i;
                             break;
                         }
                         slot = (slot + 1) & mask;
                     }
                 }
             }
+            long[] sortedLater = sortLater();
+            // keys are resolved in the order of their first records; each key's later records are the next
+            // entries of the sorted list, so the walk reads both front to back
+            int at = 0;
             for (int k = 0; k < keys; k++) {
-                resolveKey(firsts[k]);
+                int first = firsts[k];
+                int from = at;
+                while (at < laterCount && (int) (sortedLater[at] >>> 32) == first) {
+                    at++;
+                }
+                resolveKey(first, from, at);
             }
             visible.sort();
             return this;
         }
 
-        private void resolveKey(int first) {
+        /** {@link #later} sorted by first record, then record: each key's later records, together. */
+        private long[] sortLater() {
+            int[] index = workspace.ints.take(laterCount);
+            int[] index2 = workspace.ints.take(laterCount);
+            long[] buffer = workspace.longs.take(laterCount);
+            long[] sorted = PrefixRadixSort.sort(later, laterCount, index, buffer, index2).prefixes();
+            workspace.ints.give(index);
+            workspace.ints.give(index2);
+            if (sorted != later) {
+                workspace.longs.give(later);
+                later = sorted;
+            } else {
+                workspace.longs.give(buffer);
+            }
+            return sorted;
+        }
+
+        /** Record m of the key whose first record is {@code first} and later ones {@code later[from, to)}. */
+        private int member(int first, int from, int m) {
+            return m == 0 ? first : (int) later[from + m - 1];
+        }
+
+        /** Resolves the key whose first record is {@code first} and later records {@code later[from, to)}. */
+        private void resolveKey(int first, int from, int to) {
             if (lastWriter != null) {
-                int winner = next[first] == 0 ? first : lastWriterByVersion(first);
+                int winner = from == to ? first : lastWriterByVersion(first, from, to);
                 if (winner >= 0) {
                     Block w = block(winner);
                     int j = winner & (BLOCK - 1);
@@ -578,14 +632,14 @@ public final class HashConsolidator {
                     return;
                 }
             }
-            for (Row r : resolver.visible(foldGroup(first))) {
-                int member = memberHolding(first, r);
+            for (Row r : resolver.visible(foldGroup(first, from, to))) {
+                int member = memberHolding(first, from, to, r);
                 if (member >= 0) {
                     addInputRow(member);
                 } else {
                     Block f = block(first);
-                    int j = first & (BLOCK - 1);
-                    visible.addMerged(dataset, r, f.slabBytes, f.keyStart[j], f.end[j]);
+                    int at = 3 * (first & (BLOCK - 1));
+                    visible.addMerged(dataset, r, f.slabBytes, f.offsets[at + 1], f.offsets[at + 2]);
                 }
             }
         }
@@ -595,11 +649,11 @@ public final class HashConsolidator {
             visible.addRecord(i, block(i).prefixes[i & (BLOCK - 1)]);
         }
 
-        /** The record of the key starting at {@code first} whose row is {@code row} itself, or -1. */
-        private int memberHolding(int first, Row row) {
-            for (int i = first; i >= 0; i = next[i] - 1) {
-                Block b = block(i);
-                if (b.rows[i & (BLOCK - 1)] == row) {
+        /** The record of the key whose row is {@code row} itself, or -1. */
+        private int memberHolding(int first, int from, int to, Row row) {
+            for (int m = 0; m <= to - from; m++) {
+                int i = member(first, from, m);
+                if (block(i).rows[i & (BLOCK - 1)] == row) {
                     return i;
                 }
             }
@@ -611,10 +665,10 @@ public final class HashConsolidator {
          * record superseded, exactly what folding the states would give; -1 when two versions tie, because
          * then only the states' content bytes can tell duplicates from conflicts.
          */
-        private int lastWriterByVersion(int first) {
-            int second = next[first] - 1;
-            if (next[second] == 0) {
+        private int lastWriterByVersion(int first, int from, int to) {
+            if (to - from == 1) {
                 // two records, the common case of a key delivered twice: no scratch, no sort
+                int second = (int) later[from];
                 long a = version(first);
                 long b = version(second);
                 if (a == b) {
@@ -623,25 +677,26 @@ public final class HashConsolidator {
                 counts.superseded++;
                 return a > b ? first : second;
             }
-            int m = 0;
+            int count = 1 + to - from;
+            if (versionScratch.length < count) {
+                versionScratch = new long[Integer.highestOneBit(count) * 2];
+            }
             int winner = first;
-            for (int i = first; i >= 0; i = next[i] - 1) {
-                if (m == versionScratch.length) {
-                    versionScratch = Arrays.copyOf(versionScratch, m * 2);
-                }
+            for (int m = 0; m < count; m++) {
+                int i = member(first, from, m);
                 long v = version(i);
-                versionScratch[m++] = v;
+                versionScratch[m] = v;
                 if (v > version(winner)) {
                     winner = i;
                 }
             }
-            Arrays.sort(versionScratch, 0, m);
-            for (int k = 1; k < m; k++) {
+            Arrays.sort(versionScratch, 0, count);
+            for (int k = 1; k < count; k++) {
                 if (versionScratch[k] == versionScratch[k - 1]) {
                     return -1;
                 }
             }
-            counts.superseded += m - 1;
+            counts.superseded += count - 1;
             return winner;
         }
 
@@ -650,13 +705,13 @@ public final class HashConsolidator {
          * the policy knows to be distinct are merged directly: in canonical order that is the same single merge
          * ({@link Policy#surelyDistinct}), and encoding both states would cost more than the merge.
          */
-        private Object foldGroup(int first) {
-            if (next[first] == 0) {
+        private Object foldGroup(int first, int from, int to) {
+            if (from == to) {
                 return state(first);
             }
-            List<Object> members = new ArrayList<>();
-            for (int i = first; i >= 0; i = next[i] - 1) {
-                members.add(state(i));
+            List<Object> members = new ArrayList<>(1 + to - from);
+            for (int m = 0; m <= to - from; m++) {
+                members.add(state(member(first, from, m)));
             }
             if (members.size() == 2 && policy.surelyDistinct(members.get(0), members.get(1))) {
                 return policy.merge(members.get(0), members.get(1), counts);

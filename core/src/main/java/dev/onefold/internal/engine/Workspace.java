@@ -12,9 +12,9 @@ import java.util.function.ToIntFunction;
 
 /**
  * Scratch arrays of the in-memory path, kept between the batches of one engine: block columns, byte slabs, hash
- * tables, chains and sort buffers. An engine fed batch after batch, as a consumer is, then allocates, zeroes
- * and collects far less, and its calls stop paying for page faults on fresh heap and for young collections that
- * copy a live batch.
+ * tables, duplicate lists and sort buffers. An engine fed batch after batch, as a consumer is, then allocates,
+ * zeroes and collects far less, and its calls stop paying for page faults on fresh heap and for young
+ * collections that copy a live batch.
  *
  * <h2>Invariants</h2>
  * Only primitive arrays and byte slabs are kept, so a workspace never keeps records alive between batches; and
