@@ -83,7 +83,7 @@ machine > "$raw/machine.txt"
 iterations() { # size -> "warmups measurements"
   if [ "$profile" = smoke ]; then echo "0 1"; return; fi
   # at 1M a single warmup call left the JIT still compiling the engine's loops in the first measured calls
-  if [ "$1" -le 200000 ]; then echo "5 5"; elif [ "$1" -le 2000000 ]; then echo "3 5"; else echo "2 3"; fi
+  if [ "$1" -le 2000000 ]; then echo "5 5"; else echo "2 3"; fi
 }
 
 # JMH takes a machine-wide lock so that two measuring runs never overlap; a smoke run measures nothing, so it
