@@ -24,8 +24,9 @@ import java.util.stream.IntStream;
  * policies), while the caller goes on buffering the next block; once input ends, the caller extracts the
  * blocks no worker has started, from the newest back. The caller itself only stores references and adds up
  * the sizes rows carry ({@link Row#estimatedHeapBytes()}), so it stays ahead. Then records are grouped by key in
- * open-addressing hash tables, one per shard of the key hashes, in parallel; each key with several records is
- * folded in the same canonical order as {@link Consolidator} (ascending state bytes, exact duplicates skipped),
+ * open-addressing hash tables, one per shard of the key hashes, in parallel: a key's first record goes into the
+ * table, its later records onto a list sorted once per shard, so a key's records are found together without
+ * ever writing to an earlier record's line. Each key with several records is folded in the same canonical order as {@link Consolidator} (ascending state bytes, exact duplicates skipped),
  * so the folded states and the counts are identical to the sorting path (two records the policy knows to
  * differ are merged without encoding them, which is the same single merge); and the visible rows are ordered
  * as {@link Publisher} orders them.
@@ -43,7 +44,8 @@ import java.util.stream.IntStream;
  * Memory: the buffered rows plus about 120 bytes per record (its columns, the hash tables and the sort) and its
  * order and key bytes, which is what {@link #add} counts beyond each row's own estimate;
  * {@link #add} refuses rows once the estimate passes the budget so the caller can switch to the spilling path.
- * Not thread-safe; one per batch.
+ * The primitive arrays come from a {@link Workspace} and go back to it on {@link #release}. Not thread-safe; one
+ * per batch.
  */
 public final class HashConsolidator {
     private static final int BLOCK_BITS = 13;
