@@ -25,7 +25,7 @@ import java.util.UUID;
 public final class Row {
     private final RowSchema schema;
     private final Object[] values;
-    /** Fits in the object's alignment padding, so it costs no memory. */
+    /** With compressed references (the default below 32 GiB of heap) it fits in the object's padding. */
     private final int heapBytes;
 
     private Row(RowSchema schema, Object[] values) {
