@@ -582,37 +582,22 @@ public final class HashConsolidator {
                     }
                 }
             }
-            long[] sortedLater = sortLater();
-            // keys are resolved in the order of their first records; each key's later records are the next
-            // entries of the sorted list, so the walk reads both front to back
+            // sorted by first record, then record: each key's later records together, keys in the order of their
+            // first records, which is the order keys are resolved in, so the walk reads both lists front to back
+            PrefixRadixSort.Sorted sorted = workspace.sort(later, laterCount);
+            workspace.ints.give(sorted.index());
+            later = sorted.prefixes();
             int at = 0;
             for (int k = 0; k < keys; k++) {
                 int first = firsts[k];
                 int from = at;
-                while (at < laterCount && (int) (sortedLater[at] >>> 32) == first) {
+                while (at < laterCount && (int) (later[at] >>> 32) == first) {
                     at++;
                 }
                 resolveKey(first, from, at);
             }
             visible.sort();
             return this;
-        }
-
-        /** {@link #later} sorted by first record, then record: each key's later records, together. */
-        private long[] sortLater() {
-            int[] index = workspace.ints.take(laterCount);
-            int[] index2 = workspace.ints.take(laterCount);
-            long[] buffer = workspace.longs.take(laterCount);
-            long[] sorted = PrefixRadixSort.sort(later, laterCount, index, buffer, index2).prefixes();
-            workspace.ints.give(index);
-            workspace.ints.give(index2);
-            if (sorted != later) {
-                workspace.longs.give(later);
-                later = sorted;
-            } else {
-                workspace.longs.give(buffer);
-            }
-            return sorted;
         }
 
         /** Record m of the key whose first record is {@code first} and later ones {@code later[from, to)}. */

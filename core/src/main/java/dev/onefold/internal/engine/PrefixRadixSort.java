@@ -32,16 +32,9 @@ final class PrefixRadixSort {
     }
 
     /**
-     * Sorts the first {@code n} prefixes. The input array serves as one of the two buffers the passes alternate
-     * between, so its contents are undefined afterwards; the sorted prefixes are in the result.
-     */
-    static Sorted sort(long[] keys, int n) {
-        return sort(keys, n, new int[n], new long[n], new int[n]);
-    }
-
-    /**
      * Sorts the first {@code n} prefixes using the given buffers, each of at least {@code n} entries, whose
-     * contents do not matter; the result is held in two of the five arrays.
+     * contents do not matter. The input array serves as one of the two buffers the passes alternate between, so
+     * its contents are undefined afterwards; the result is held in two of the four arrays.
      */
     static Sorted sort(long[] keys, int n, int[] idx, long[] keys2, int[] idx2) {
         for (int i = 0; i < n; i++) {

@@ -108,19 +108,14 @@ final class VisibleRows {
 
     /** Sorts this part by order bytes, then canonical row bytes. */
     void sort() {
-        int[] idxBuffer = workspace.ints.take(size);
-        int[] idxBuffer2 = workspace.ints.take(size);
-        long[] prefixBuffer = workspace.longs.take(size);
-        PrefixRadixSort.Sorted byPrefix = PrefixRadixSort.sort(prefixes, size, idxBuffer, prefixBuffer, idxBuffer2);
+        PrefixRadixSort.Sorted byPrefix = workspace.sort(prefixes, size);
         long[] keys = byPrefix.prefixes();
         int[] idx = byPrefix.index();
         int[] sortedRefs = workspace.ints.take(size);
         for (int i = 0; i < size; i++) {
             sortedRefs[i] = refs[idx[i]];
         }
-        workspace.ints.give(idxBuffer);
-        workspace.ints.give(idxBuffer2);
-        workspace.longs.give(keys == prefixes ? prefixBuffer : prefixes);
+        workspace.ints.give(idx);
         workspace.ints.give(refs);
         Comparator<Integer> fullOrder = (x, y) -> compare(this, x, this, y);
         int runStart = 0;

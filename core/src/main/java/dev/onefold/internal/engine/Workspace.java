@@ -47,11 +47,19 @@ public final class Workspace {
         return a;
     }
 
-    /** A zeroed array of at least {@code n} ints. */
-    int[] zeroedInts(int n) {
-        int[] a = ints.take(n);
-        Arrays.fill(a, 0, n, 0);
-        return a;
+    /**
+     * Sorts the first {@code n} of {@code keys} ({@link PrefixRadixSort#sort}) with buffers from this workspace.
+     * The two arrays of the result are the caller's, to give back when done; every other array involved,
+     * {@code keys} included when the result is not in it, is back here already.
+     */
+    PrefixRadixSort.Sorted sort(long[] keys, int n) {
+        int[] index = ints.take(n);
+        int[] index2 = ints.take(n);
+        long[] keys2 = longs.take(n);
+        PrefixRadixSort.Sorted sorted = PrefixRadixSort.sort(keys, n, index, keys2, index2);
+        ints.give(sorted.index() == index ? index2 : index);
+        longs.give(sorted.prefixes() == keys ? keys2 : keys);
+        return sorted;
     }
 
     /** An empty slab, with the capacity it grew to before when it was used already. */
